@@ -1,0 +1,5 @@
+"""Allow ``python -m generator``."""
+
+from .cli import main
+
+raise SystemExit(main())

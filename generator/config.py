@@ -1,0 +1,377 @@
+"""Read study.toml into frozen, validated settings; the rest of netfolio never reads raw TOML."""
+
+from __future__ import annotations
+
+import difflib
+import re
+import sys
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover - exercised only on Python 3.10
+    import tomli as tomllib
+
+from .errors import ConfigError
+
+__all__ = [
+    "CommunitiesConfig",
+    "MeasuresConfig",
+    "NetworkConfig",
+    "SharingConfig",
+    "SignificanceConfig",
+    "SiteConfig",
+    "StudyConfig",
+    "load_study",
+]
+
+STUDY_FILE = "study.toml"
+COMMUNITY_METHODS = ("leiden", "louvain", "label-propagation")
+DUPLICATE_RULES = ("sum", "mean", "max")
+WEIGHT_MEANINGS = ("strength", "distance")
+SIZE_MEASURES = (
+    "degree", "in_degree", "out_degree", "strength", "in_strength", "out_strength", "betweenness",
+    "closeness", "harmonic", "eigenvector", "pagerank", "coreness",
+)
+_ID = re.compile(r"^[a-z0-9-]+$")
+
+DEFAULT_SEED = 1
+DEFAULT_OUTPUT = "output"
+DEFAULT_RUNS = 20
+DEFAULT_NULL_SAMPLES = 200
+DEFAULT_EXACT_PATHS_UP_TO = 5000
+DEFAULT_PATH_SAMPLE_SOURCES = 500
+
+
+@dataclass(frozen=True, kw_only=True)
+class NetworkConfig:
+    """One ``[[network]]`` table: where its data are and how to read them."""
+
+    id: str
+    title: str
+    edges: Path | None = None
+    matrix: Path | None = None
+    nodes: Path | None = None
+    node_id: str = "id"
+    label: str | None = None
+    source: str = "source"
+    target: str = "target"
+    directed: bool = False
+    weight: str | None = None
+    weight_means: str = "strength"
+    duplicates: str = "sum"
+    two_mode: bool = False
+    modes: tuple[str, str] = ("person", "event")
+    series: str | None = None
+    wave: int | None = None
+    color_by: str | None = None
+    size_by: str | None = None
+
+    @property
+    def data_file(self) -> Path:
+        return self.edges if self.edges is not None else self.matrix  # type: ignore[return-value]
+
+    @property
+    def weighted(self) -> bool:
+        """Matrices are weighted whenever a cell differs from 0/1; ingest decides that."""
+        return self.weight is not None
+
+
+@dataclass(frozen=True, kw_only=True)
+class CommunitiesConfig:
+    method: str = "leiden"
+    resolution: float = 1.0
+    runs: int = DEFAULT_RUNS
+
+
+@dataclass(frozen=True, kw_only=True)
+class SignificanceConfig:
+    null_samples: int = DEFAULT_NULL_SAMPLES
+
+
+@dataclass(frozen=True, kw_only=True)
+class MeasuresConfig:
+    """Above ``exact_paths_up_to`` nodes, path measures use ``path_sample_sources`` sampled sources."""
+
+    exact_paths_up_to: int = DEFAULT_EXACT_PATHS_UP_TO
+    path_sample_sources: int = DEFAULT_PATH_SAMPLE_SOURCES
+
+
+@dataclass(frozen=True, kw_only=True)
+class SharingConfig:
+    pseudonymize: bool = True
+    drop: tuple[str, ...] = ("name", "email")
+    min_group: int = 5
+
+
+@dataclass(frozen=True, kw_only=True)
+class SiteConfig:
+    theme: str = "default"
+    allow_html: bool = False
+
+
+@dataclass(frozen=True, kw_only=True)
+class StudyConfig:
+    """The whole of study.toml, with every path made absolute and checked to lie in ``root``."""
+
+    root: Path
+    title: str
+    summary: Path | None = None
+    seed: int = DEFAULT_SEED
+    output: Path
+    networks: tuple[NetworkConfig, ...] = ()
+    communities: CommunitiesConfig = field(default_factory=CommunitiesConfig)
+    significance: SignificanceConfig = field(default_factory=SignificanceConfig)
+    measures: MeasuresConfig = field(default_factory=MeasuresConfig)
+    sharing: SharingConfig = field(default_factory=SharingConfig)
+    site: SiteConfig = field(default_factory=SiteConfig)
+
+    @property
+    def study_file(self) -> Path:
+        return self.root / STUDY_FILE
+
+    def relative(self, path: Path) -> str:
+        """A path as the user wrote it: relative to the study folder, with forward slashes."""
+        try:
+            return path.relative_to(self.root).as_posix()
+        except ValueError:
+            return str(path)
+
+
+# ---------------------------------------------------------------------------------------------
+# Parsing
+
+
+class _Table:
+    """A TOML table being read: records the keys taken so unknown ones can be reported."""
+
+    def __init__(self, data: Any, dotted: str, allowed: tuple[str, ...]):
+        if not isinstance(data, dict):
+            raise ConfigError(f"must be a table, got {_describe(data)}", key=dotted)
+        self.data = data
+        self.dotted = dotted
+        unknown = [k for k in data if k not in allowed]
+        if unknown:
+            key = unknown[0]
+            close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.5)
+            hint = f"; did you mean '{close[0]}'?" if close else f"; valid keys: {', '.join(allowed)}"
+            raise ConfigError(f"unknown key '{key}'{hint}", key=self._key(key))
+
+    def _key(self, name: str) -> str:
+        return f"{self.dotted}.{name}" if self.dotted else name
+
+    def get(self, name: str, kind: type | tuple[type, ...], default: Any = None, *,
+            required: bool = False) -> Any:
+        if name not in self.data:
+            if required:
+                raise ConfigError("is required", key=self._key(name))
+            return default
+        value = self.data[name]
+        kinds = kind if isinstance(kind, tuple) else (kind,)
+        # TOML booleans are ints in Python; never accept one for the other.
+        ok = isinstance(value, kinds) and not (isinstance(value, bool) and bool not in kinds)
+        if float in kinds and isinstance(value, int) and not isinstance(value, bool):
+            ok, value = True, float(value)
+        if not ok:
+            want = " or ".join(_TYPE_NAMES.get(k, k.__name__) for k in kinds)
+            raise ConfigError(f"must be {want}, got {_describe(value)}", key=self._key(name))
+        return value
+
+    def choice(self, name: str, allowed: tuple[str, ...], default: str) -> str:
+        value = self.get(name, str, default)
+        if value not in allowed:
+            close = difflib.get_close_matches(value, allowed, n=1, cutoff=0.5)
+            hint = f"; did you mean '{close[0]}'?" if close else ""
+            raise ConfigError(f"must be one of {', '.join(allowed)}, got '{value}'{hint}",
+                              key=self._key(name))
+        return value
+
+    def positive_int(self, name: str, default: int, *, minimum: int = 1) -> int:
+        value = self.get(name, int, default)
+        if value < minimum:
+            raise ConfigError(f"must be at least {minimum}, got {value}", key=self._key(name))
+        return value
+
+
+_TYPE_NAMES = {str: "text", int: "a whole number", float: "a number", bool: "true or false",
+               list: "a list", dict: "a table"}
+
+
+def _describe(value: Any) -> str:
+    return f"{_TYPE_NAMES.get(type(value), type(value).__name__)} {value!r}"
+
+
+def _inside(root: Path, raw: str, key: str) -> Path:
+    """Resolve a data path and refuse it unless it stays inside the study folder."""
+    path = (root / raw).resolve()
+    if not path.is_relative_to(root):
+        raise ConfigError(f"'{raw}' lies outside the study folder {root}; data must stay inside it",
+                          key=key)
+    return path
+
+
+def _existing_file(root: Path, raw: str, key: str) -> Path:
+    path = _inside(root, raw, key)
+    if not path.is_file():
+        raise ConfigError(f"file '{raw}' does not exist", key=key)
+    return path
+
+
+def _network(root: Path, data: Any, index: int) -> NetworkConfig:
+    dotted = f"network[{index + 1}]"
+    allowed = tuple(f.name for f in NetworkConfig.__dataclass_fields__.values())
+    t = _Table(data, dotted, allowed)
+    net_id = t.get("id", str, required=True)
+    if not _ID.match(net_id):
+        raise ConfigError(f"'{net_id}' may hold only a-z, 0-9 and '-'", key=f"{dotted}.id")
+    edges, matrix = t.get("edges", str), t.get("matrix", str)
+    if (edges is None) == (matrix is None):
+        raise ConfigError("give exactly one of 'edges' (an edge list) or 'matrix' (an adjacency "
+                          "matrix)", key=dotted)
+    nodes = t.get("nodes", str)
+    modes = t.get("modes", list, ["person", "event"])
+    if len(modes) != 2 or not all(isinstance(m, str) and m for m in modes):
+        raise ConfigError("must be a list of two names", key=f"{dotted}.modes")
+    two_mode = t.get("two_mode", bool, False)
+    if two_mode:
+        raise ConfigError("two-mode networks are not supported by this version of netfolio yet",
+                          key=f"{dotted}.two_mode")
+    weight = t.get("weight", str)
+    if matrix is not None and (weight is not None or "source" in data or "target" in data):
+        raise ConfigError("'weight', 'source' and 'target' name edge-list columns; an adjacency "
+                          "matrix has none (its cells are the weights)", key=dotted)
+    wave = t.get("wave", int)
+    series = t.get("series", str)
+    if wave is not None and series is None:
+        raise ConfigError("'wave' needs a 'series' to order the network within", key=f"{dotted}.wave")
+    size_by = t.get("size_by", str)
+    if size_by is not None and size_by not in SIZE_MEASURES:
+        close = difflib.get_close_matches(size_by, SIZE_MEASURES, n=1, cutoff=0.5)
+        hint = f"; did you mean '{close[0]}'?" if close else ""
+        raise ConfigError(f"'{size_by}' is not a node measure; use one of {', '.join(SIZE_MEASURES)}"
+                          f"{hint}", key=f"{dotted}.size_by")
+    return NetworkConfig(
+        id=net_id,
+        title=t.get("title", str, net_id),
+        edges=_existing_file(root, edges, f"{dotted}.edges") if edges else None,
+        matrix=_existing_file(root, matrix, f"{dotted}.matrix") if matrix else None,
+        nodes=_existing_file(root, nodes, f"{dotted}.nodes") if nodes else None,
+        node_id=t.get("node_id", str, "id"),
+        label=t.get("label", str),
+        source=t.get("source", str, "source"),
+        target=t.get("target", str, "target"),
+        directed=t.get("directed", bool, False),
+        weight=weight,
+        weight_means=t.choice("weight_means", WEIGHT_MEANINGS, "strength"),
+        duplicates=t.choice("duplicates", DUPLICATE_RULES, "sum"),
+        two_mode=two_mode,
+        modes=(modes[0], modes[1]),
+        series=series,
+        wave=wave,
+        color_by=t.get("color_by", str),
+        size_by=size_by,
+    )
+
+
+_TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site")
+
+
+def load_study(project: Path | str) -> StudyConfig:
+    """Read and validate ``project/study.toml``; raise ConfigError naming the dotted key."""
+    root = Path(project).resolve()
+    path = root / STUDY_FILE
+    if not path.is_file():
+        raise ConfigError(f"no {STUDY_FILE} in {root}; run 'netfolio init DIR' to start a study")
+    try:
+        raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
+    except UnicodeDecodeError as exc:
+        raise ConfigError(f"is not UTF-8 text ({exc.reason} at byte {exc.start})", path=path) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise ConfigError(f"is not valid TOML: {exc}", path=path) from None
+    try:
+        return _study(root, raw)
+    except ConfigError as exc:
+        exc.path = path
+        raise
+
+
+def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
+    _Table(raw, "", _TOP)
+    if "study" not in raw:
+        raise ConfigError("the [study] table is required (with at least a title)", key="study")
+    s = _Table(raw["study"], "study", ("title", "summary", "seed", "output"))
+    summary = s.get("summary", str)
+    output_raw = s.get("output", str, DEFAULT_OUTPUT)
+    output = (root / output_raw).resolve()
+    if output == root or root.is_relative_to(output):
+        raise ConfigError(f"the output folder '{output_raw}' may not be the study folder or "
+                          "contain it", key="study.output")
+
+    networks_raw = raw.get("network", [])
+    if not isinstance(networks_raw, list) or not networks_raw:
+        raise ConfigError("at least one [[network]] table is required", key="network")
+    networks = tuple(_network(root, data, i) for i, data in enumerate(networks_raw))
+    seen: dict[str, int] = {}
+    for i, net in enumerate(networks):
+        if net.id in seen:
+            raise ConfigError(f"id '{net.id}' is already used by network[{seen[net.id] + 1}]",
+                              key=f"network[{i + 1}].id")
+        seen[net.id] = i
+        for data_path in (net.data_file, net.nodes):
+            if data_path is not None and data_path.is_relative_to(output):
+                raise ConfigError(f"'{data_path.relative_to(root)}' lies inside the output folder",
+                                  key="study.output")
+    _check_waves(networks)
+
+    c = _Table(raw.get("communities", {}), "communities", ("method", "resolution", "runs"))
+    resolution = c.get("resolution", float, 1.0)
+    if resolution <= 0:
+        raise ConfigError(f"must be above 0, got {resolution}", key="communities.resolution")
+    g = _Table(raw.get("significance", {}), "significance", ("null_samples",))
+    m = _Table(raw.get("measures", {}), "measures", ("exact_paths_up_to", "path_sample_sources"))
+    sh = _Table(raw.get("sharing", {}), "sharing", ("pseudonymize", "drop", "min_group"))
+    drop = sh.get("drop", list, ["name", "email"])
+    if not all(isinstance(d, str) for d in drop):
+        raise ConfigError("must be a list of column names", key="sharing.drop")
+    si = _Table(raw.get("site", {}), "site", ("theme", "allow_html"))
+    summary_path = _existing_file(root, summary, "study.summary") if summary else None
+
+    return StudyConfig(
+        root=root,
+        title=s.get("title", str, required=True),
+        summary=summary_path,
+        seed=s.get("seed", int, DEFAULT_SEED),
+        output=output,
+        networks=networks,
+        communities=CommunitiesConfig(
+            method=c.choice("method", COMMUNITY_METHODS, "leiden"),
+            resolution=resolution,
+            runs=c.positive_int("runs", DEFAULT_RUNS),
+        ),
+        significance=SignificanceConfig(
+            null_samples=g.positive_int("null_samples", DEFAULT_NULL_SAMPLES, minimum=0)),
+        measures=MeasuresConfig(
+            exact_paths_up_to=m.positive_int("exact_paths_up_to", DEFAULT_EXACT_PATHS_UP_TO),
+            path_sample_sources=m.positive_int("path_sample_sources", DEFAULT_PATH_SAMPLE_SOURCES),
+        ),
+        sharing=SharingConfig(
+            pseudonymize=sh.get("pseudonymize", bool, True),
+            drop=tuple(drop),
+            min_group=sh.positive_int("min_group", 5),
+        ),
+        site=SiteConfig(theme=si.get("theme", str, "default"),
+                        allow_html=si.get("allow_html", bool, False)),
+    )
+
+
+def _check_waves(networks: tuple[NetworkConfig, ...]) -> None:
+    by_series: dict[str, set[int]] = {}
+    for i, net in enumerate(networks):
+        if net.series is None or net.wave is None:
+            continue
+        if net.wave in by_series.setdefault(net.series, set()):
+            raise ConfigError(f"series '{net.series}' already has a wave {net.wave}",
+                              key=f"network[{i + 1}].wave")
+        by_series[net.series].add(net.wave)

@@ -1,0 +1,348 @@
+"""Turn one [[network]]'s files into a CleanNetwork, recording every fix and refusal."""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pandas as pd
+
+from ..config import NetworkConfig, StudyConfig
+from ..errors import DataError, Finding
+from .csvfile import Table, read_table
+
+__all__ = ["CleanNetwork", "DataChecks", "natural_key", "read_network"]
+
+MAX_LINES_LISTED = 20  # a finding lists at most this many line numbers
+
+
+def natural_key(text: str) -> tuple:
+    """Sort "s2" before "s10": digits compare as numbers, the rest as text."""
+    return tuple((0, int(part), "") if part.isdigit() else (1, 0, part)
+                 for part in re.split(r"(\d+)", text) if part != "")
+
+
+@dataclass
+class DataChecks:
+    """Every fix and refusal made while reading one network, in the order found."""
+
+    findings: list[Finding] = field(default_factory=list)
+
+    def add(self, finding: Finding) -> None:
+        self.findings.append(finding)
+
+    @property
+    def errors(self) -> list[Finding]:
+        return [f for f in self.findings if f.level == "error"]
+
+    def raise_if_errors(self) -> None:
+        if self.errors:
+            raise DataError(self.errors)
+
+
+@dataclass(frozen=True)
+class CleanNetwork:
+    """A network ready for analysis.
+
+    ``nodes`` is indexed by node id (text), sorted naturally, with a ``label`` column and the node
+    attributes (numbers where a column holds only numbers). ``edges`` has ``source``, ``target``
+    and, when weighted, ``weight`` (as written, before strength/length conversion), sorted by node
+    order. Undirected ties are stored with source before target in node order.
+    """
+
+    config: NetworkConfig
+    nodes: pd.DataFrame
+    edges: pd.DataFrame
+    weighted: bool
+    attributes: tuple[str, ...]
+    checks: DataChecks
+    files: tuple[Path, ...]
+
+    @property
+    def id(self) -> str:
+        return self.config.id
+
+    @property
+    def directed(self) -> bool:
+        return self.config.directed
+
+
+def _number(text: str) -> float | None:
+    try:
+        return float(text)
+    except ValueError:
+        return None
+
+
+def _lines(lines: list[int]) -> str:
+    shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
+    return shown + (f" and {len(lines) - MAX_LINES_LISTED} more" if len(lines) > MAX_LINES_LISTED else "")
+
+
+# ---------------------------------------------------------------------------------------------
+# Node list
+
+
+def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.DataFrame:
+    table = read_table(net.nodes, name)  # type: ignore[arg-type]
+    table.require(net.node_id, what="node list")
+    if net.label is not None:
+        table.require(net.label, what="node list")
+    id_col = table.column(net.node_id)
+    first_line: dict[str, int] = {}
+    for row, line in zip(table.rows, table.lines):
+        node = row[id_col]
+        if node == "":
+            checks.add(Finding("error", name, "a node has an empty id", line=line, column=net.node_id))
+        elif node in first_line:
+            checks.add(Finding("error", name, f"node id is repeated (first on line {first_line[node]})",
+                               line=line, column=net.node_id, value=node))
+        else:
+            first_line[node] = line
+    checks.raise_if_errors()
+    frame = pd.DataFrame(list(table.rows), columns=list(table.header), dtype="string")
+    frame = frame.set_index(net.node_id)
+    frame.index = frame.index.astype(str)
+    frame.index.name = "id"
+    return frame
+
+
+def _typed_attributes(frame: pd.DataFrame) -> pd.DataFrame:
+    """Empty cells become missing; a column whose filled cells are all numbers becomes numeric."""
+    typed = {}
+    for column in frame.columns:
+        text = frame[column].astype("string").str.strip().replace("", pd.NA)
+        numbers = pd.to_numeric(text, errors="coerce")
+        if text.notna().any() and numbers.notna().sum() == text.notna().sum():
+            all_whole = ((numbers.dropna() % 1) == 0).all()
+            typed[column] = numbers.astype("Int64") if all_whole else numbers.astype("Float64")
+        else:
+            typed[column] = text
+    return pd.DataFrame(typed, index=frame.index)
+
+
+# ---------------------------------------------------------------------------------------------
+# Edge list and matrix
+
+
+@dataclass(frozen=True)
+class _RawTie:
+    source: str
+    target: str
+    weight: float
+    line: int
+
+
+def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: str,
+                  checks: DataChecks) -> float | None:
+    if text == "":
+        checks.add(Finding("error", name, "weight is missing", line=line, column=column, value=text))
+        return None
+    value = _number(text)
+    if value is None or math.isnan(value):
+        checks.add(Finding("error", name, "weight is not a number", line=line, column=column, value=text))
+    elif math.isinf(value):
+        checks.add(Finding("error", name, "weight is infinite", line=line, column=column, value=text))
+    elif value < 0:
+        checks.add(Finding("error", name, "weight is negative; netfolio reads weights as tie "
+                           "strengths or distances, which cannot be below 0", line=line,
+                           column=column, value=text))
+    else:
+        return value
+    return None
+
+
+def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_RawTie]:
+    table = read_table(net.edges, name)  # type: ignore[arg-type]
+    columns = [net.source, net.target] + ([net.weight] if net.weight else [])
+    table.require(*columns, what="edge list")
+    s, t = table.column(net.source), table.column(net.target)
+    w = table.column(net.weight) if net.weight else None
+    ties = []
+    zero_lines = []
+    for row, line in zip(table.rows, table.lines):
+        source, target = row[s], row[t]
+        for column, value in ((net.source, source), (net.target, target)):
+            if value == "":
+                checks.add(Finding("error", name, "a tie has an empty node id", line=line,
+                                   column=column, value=value))
+        weight = 1.0
+        if w is not None:
+            checked = _check_weight(row[w], net, name, line, net.weight, checks)  # type: ignore[arg-type]
+            if checked is None:
+                continue
+            if checked == 0:
+                zero_lines.append(line)
+                checks.add(Finding("error", name, _zero_weight_reason(net), line=line,
+                                   column=net.weight, value=row[w]))
+                continue
+            weight = checked
+        if source and target:
+            ties.append(_RawTie(source, target, weight, line))
+    return ties
+
+
+def _zero_weight_reason(net: NetworkConfig) -> str:
+    if net.weight_means == "strength":
+        return ("weight is 0: as a tie strength it would become an infinite path length; "
+                "remove the row if there is no tie")
+    return ("weight is 0: as a distance it would make the tie infinitely strong; "
+            "remove the row or give a positive distance")
+
+
+def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[list[_RawTie], list[str], bool]:
+    """Rows are senders (source), columns receivers (target); a cell is the tie's weight."""
+    table = read_table(net.matrix, name)  # type: ignore[arg-type]
+    col_labels = list(table.header[1:])
+    row_labels = [row[0] for row in table.rows]
+    if len(set(col_labels)) != len(col_labels):
+        dup = next(x for x in col_labels if col_labels.count(x) > 1)
+        raise DataError(Finding("error", name, "a column label is repeated in the header row",
+                                line=1, value=dup))
+    if sorted(row_labels) != sorted(col_labels):
+        only_rows = sorted(set(row_labels) - set(col_labels))
+        only_cols = sorted(set(col_labels) - set(row_labels))
+        odd = (f"row label {only_rows[0]!r} has no column" if only_rows
+               else f"column label {only_cols[0]!r} has no row" if only_cols
+               else "a row label is repeated")
+        raise DataError(Finding("error", name, "an adjacency matrix needs the same labels in its "
+                                f"header row and first column: {odd}", line=1))
+    values: dict[tuple[str, str], float] = {}
+    line_of: dict[str, int] = {}
+    for row, line in zip(table.rows, table.lines):
+        line_of[row[0]] = line
+        for label, cell in zip(col_labels, row[1:]):
+            if cell == "":
+                value = 0.0
+            else:
+                value = _check_weight(cell, net, name, line, label, checks)
+                if value is None:
+                    continue
+            values[(row[0], label)] = value
+    checks.raise_if_errors()
+    if not net.directed:
+        for row_label in row_labels:  # file order, so the first asymmetric cell is named
+            for col_label in col_labels:
+                a, b = values[(row_label, col_label)], values[(col_label, row_label)]
+                if a != b:
+                    raise DataError(Finding(
+                        "error", name, f"the network is undirected but the matrix is not symmetric: "
+                        f"row {row_label!r} column {col_label!r} holds {a:g}, row {col_label!r} "
+                        f"column {row_label!r} holds {b:g}", line=line_of[row_label],
+                        column=col_label, value=f"{a:g}"))
+    weighted = any(v not in (0.0, 1.0) for v in values.values())
+    ties = [
+        _RawTie(src, dst, value, line_of[src])
+        for (src, dst), value in values.items()
+        if value != 0 and (net.directed or natural_key(src) <= natural_key(dst))
+    ]
+    return ties, row_labels, weighted
+
+
+# ---------------------------------------------------------------------------------------------
+# Cleaning
+
+
+_COMBINE = {"sum": "sum", "mean": "mean", "max": "max"}
+
+
+def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[str, int],
+                weighted: bool, checks: DataChecks) -> pd.DataFrame:
+    loops = [t for t in ties if t.source == t.target]
+    if loops:
+        checks.add(Finding("fix", name, f"{len(loops)} self-loop(s) removed (a tie from a node to "
+                           f"itself) on line(s) {_lines([t.line for t in loops])}",
+                           value=loops[0].source, count=len(loops)))
+    kept = [t for t in ties if t.source != t.target]
+
+    def key(t: _RawTie) -> tuple[int, int]:
+        a, b = order[t.source], order[t.target]
+        return (a, b) if net.directed or a <= b else (b, a)
+
+    frame = pd.DataFrame({
+        "a": [key(t)[0] for t in kept], "b": [key(t)[1] for t in kept],
+        "weight": [t.weight for t in kept], "line": [t.line for t in kept],
+    })
+    # Sort before combining so sums do not depend on the order of rows in the file.
+    frame = frame.sort_values(["a", "b", "weight", "line"], kind="mergesort")
+    repeated = frame[frame.duplicated(["a", "b"], keep=False)]
+    if len(repeated):
+        extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
+        how = f"weights combined by {net.duplicates}" if weighted else "kept once"
+        what = "ties" if net.directed else "ties (either direction, as the network is undirected)"
+        checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; lines "
+                           f"{_lines(sorted(repeated['line'].tolist()))}", count=extra))
+    merged = frame.groupby(["a", "b"], sort=True)["weight"].agg(_COMBINE[net.duplicates]).reset_index()
+    names = sorted(order, key=order.__getitem__)
+    edges = pd.DataFrame({
+        "source": pd.Series([names[i] for i in merged["a"]], dtype=str),
+        "target": pd.Series([names[i] for i in merged["b"]], dtype=str),
+    })
+    if weighted:
+        edges["weight"] = merged["weight"].astype(float).to_numpy()
+    return edges
+
+
+def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
+    """Read, check and clean one network; raise DataError listing every error found."""
+    checks = DataChecks()
+    data_name = study.relative(net.data_file)
+    node_frame = None
+    if net.nodes is not None:
+        node_frame = _read_node_list(net, study.relative(net.nodes), checks)
+    if net.edges is not None:
+        ties = _read_edge_list(net, data_name, checks)
+        weighted = net.weight is not None
+        listed = [t.source for t in ties] + [t.target for t in ties]
+    else:
+        ties, listed, weighted = _read_matrix(net, data_name, checks)
+    checks.raise_if_errors()
+    if not ties and node_frame is None:
+        raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
+                                "the network would be empty"))
+
+    known = set(node_frame.index) if node_frame is not None else set()
+    unknown: dict[str, int] = {}
+    for tie in ties:
+        for node in (tie.source, tie.target):
+            if node_frame is not None and node not in known and node not in unknown:
+                unknown[node] = tie.line
+    if unknown:
+        shown = ", ".join(f"{n!r} (line {line})" for n, line in list(unknown.items())[:MAX_LINES_LISTED])
+        checks.add(Finding("fix", data_name, f"{len(unknown)} node(s) appear in ties but not in the "
+                           f"node list {study.relative(net.nodes)}; added with no attributes: {shown}",
+                           value=next(iter(unknown)), count=len(unknown)))
+
+    all_ids = sorted(known | set(listed), key=natural_key)
+    order = {node: i for i, node in enumerate(all_ids)}
+    edges = _clean_ties(ties, net, data_name, order, weighted, checks)
+
+    if node_frame is None:
+        node_frame = pd.DataFrame(index=pd.Index(all_ids, name="id"))
+    node_frame = node_frame.reindex(pd.Index(all_ids, name="id"))
+    attrs = _typed_attributes(node_frame)
+    labels = (attrs[net.label].astype("string") if net.label else pd.Series(pd.NA, index=attrs.index,
+                                                                           dtype="string"))
+    labels = labels.fillna(pd.Series(attrs.index, index=attrs.index, dtype="string"))
+    attribute_names = tuple(c for c in attrs.columns if c != net.label)
+    nodes = pd.concat([labels.rename("label"), attrs[list(attribute_names)]], axis=1)
+
+    touched = set(edges["source"]) | set(edges["target"])
+    isolates = [n for n in all_ids if n not in touched]
+    if isolates:
+        checks.add(Finding("note", data_name, f"{len(isolates)} isolate(s) with no ties, kept in "
+                           f"the network: {', '.join(isolates[:MAX_LINES_LISTED])}",
+                           count=len(isolates)))
+    _check_display_settings(net, attribute_names, study)
+    files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
+    return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files)
+
+
+def _check_display_settings(net: NetworkConfig, attributes: tuple[str, ...], study: StudyConfig) -> None:
+    if net.color_by is not None and net.color_by != "community" and net.color_by not in attributes:
+        where = study.relative(net.nodes) if net.nodes else "the network (it has no node list)"
+        choices = ", ".join(("community",) + attributes)
+        raise DataError(Finding("error", where, f"color_by = {net.color_by!r} in study.toml names no "
+                                f"node attribute; use one of: {choices}", column=net.color_by))
