@@ -73,7 +73,7 @@ FIRST = [
 ]
 SURNAME_HEAD = ["Brem", "Calder", "Dun", "Fen", "Garr", "Holm", "Kest", "Lind", "Morr", "Pell",
                 "Renn", "Sel", "Torr", "Wend", "Yarr", "Ash", "Quill", "Orm"]
-SURNAME_TAIL = ["abey", "icott", "away", "ingdale", "ow", "amere", "ister", "wick", "oby",
+SURNAME_TAIL = ["abey", "icott", "away", "ingdale", "ock", "amere", "ister", "wick", "oby",
                 "enshaw"]
 
 # Two names written by hand, to exercise CSV quoting and UTF-8.
@@ -114,9 +114,9 @@ def make_staff(rng: np.random.Generator) -> pd.DataFrame:
 
 
 def pick_isolates(staff: pd.DataFrame) -> list[str]:
-    """A newly hired administrator and an outreach worker who is mostly off-site."""
+    """A part-time evening administrator and an outreach worker who is mostly off-site."""
     admin = staff[(staff.clinic == "Stonewick") & (staff.role == "administrator")]
-    admin_id = admin.sort_values(["years_in_post", "id"]).id.iloc[0]
+    admin_id = admin.sort_values("id").id.iloc[-1]
     chw = staff[(staff.clinic == "Quayside") & (staff.role == "community health worker")]
     return [admin_id, chw.sort_values("id").id.iloc[-1]]
 
@@ -133,8 +133,8 @@ def make_advice(rng: np.random.Generator, staff: pd.DataFrame, isolates: list[st
         if src != dst and (src, dst) not in ties:
             ties[(src, dst)] = times
 
-    out_range = {"nurse": (4, 8), "physician": (3, 6), "manager": (3, 6),
-                 "community health worker": (3, 6), "pharmacist": (3, 5), "administrator": (2, 4)}
+    out_range = {"nurse": (3, 7), "physician": (3, 5), "manager": (3, 5),
+                 "community health worker": (3, 5), "pharmacist": (3, 5), "administrator": (2, 4)}
     # Within each clinic: advice leans toward seniority and clinical/managerial roles.
     for ego, row in active.iterrows():
         mates = active[(active.clinic == row.clinic) & (active.index != ego)]
@@ -199,7 +199,7 @@ def add_faults(rng: np.random.Generator, clean: pd.DataFrame, staff: pd.DataFram
         rows.insert(block[-1] + 1, repeat)
         faults.append(("repeated tie", repeat))
     # One respondent named themself.
-    src = sources[33]
+    src = sources[37]
     block = [i for i, r in enumerate(rows) if r["source"] == src]
     loop = {"source": src, "target": src, "times_per_month": 2}
     rows.insert(block[2], loop)
@@ -223,7 +223,7 @@ def make_coworking(rng: np.random.Generator, staff: pd.DataFrame) -> pd.DataFram
             if s.loc[a, "clinic"] != s.loc[b, "clinic"]:
                 continue
             roles = {s.loc[a, "role"], s.loc[b, "role"]}
-            p = 0.30
+            p = 0.36
             if roles == {"nurse", "physician"} or roles == {"community health worker"}:
                 p += 0.25
             if roles == {"manager", "administrator"} or roles == {"administrator"}:
