@@ -23,6 +23,7 @@ def build_graph(network: CleanNetwork) -> ig.Graph:
     pairs = list(zip((index[s] for s in edges["source"]), (index[t] for t in edges["target"])))
     graph = ig.Graph(n=len(ids), edges=pairs, directed=network.directed)
     graph.vs["name"] = ids
+    graph["weight_means"] = network.config.weight_means
     if network.weighted:
         weights = [float(w) for w in edges["weight"]]
         if network.config.weight_means == "strength":

@@ -160,7 +160,8 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
         if graph.ecount() == 0:
             omitted["eigenvector"] = "the network has no ties"
         else:
-            columns["eigenvector"] = graph.eigenvector_centrality(directed=directed, scale=True,
+            # directed=True is ignored on undirected graphs; igraph 1.0 rejects False there.
+            columns["eigenvector"] = graph.eigenvector_centrality(directed=True, scale=True,
                                                                   weights=strengths)
     else:
         omitted["eigenvector"] = ("the network is directed and not strongly connected, so the "
