@@ -1,0 +1,1 @@
+"""Site themes shipped with netfolio; each folder holds templates/ and static/."""
