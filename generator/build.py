@@ -1,0 +1,166 @@
+"""Run the stages in order: config -> ingest -> analyse -> draw -> render -> publish.
+
+This is the only module that knows every stage."""
+
+from __future__ import annotations
+
+import datetime as dt
+import os
+import sys
+import time
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+from typing import Callable, TextIO
+
+from . import __version__
+from .analyse import NetworkAnalysis, analyse_network
+from .config import StudyConfig, load_study
+from .draw import draw_network
+from .errors import ConfigError, DataError, Finding
+from .ingest import CleanNetwork, read_network
+from .publish import datapackage_json, network_files, write_site
+from .render import NetworkPageInput, render_site
+
+__all__ = ["BuildResult", "Progress", "build_study", "check_study"]
+
+
+class Progress:
+    """One line per stage on stderr, with counts and timing; silent when ``quiet``."""
+
+    def __init__(self, stream: TextIO | None = None, *, quiet: bool = False):
+        self.stream = stream if stream is not None else sys.stderr
+        self.quiet = quiet
+        self._start = time.perf_counter()
+
+    def stage(self, name: str, message: str) -> None:
+        if self.quiet:
+            return
+        elapsed = time.perf_counter() - self._start
+        print(f"{name:<8} {message} ({elapsed:.2f} s)", file=self.stream, flush=True)
+        self._start = time.perf_counter()
+
+
+@dataclass
+class BuildResult:
+    study: StudyConfig
+    output: Path
+    files: int
+    networks: list[NetworkAnalysis] = field(default_factory=list)
+
+
+def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
+    """Read every network, collecting the errors of all of them before giving up."""
+    cleaned, errors = [], []
+    for net in study.networks:
+        try:
+            clean = read_network(study, net)
+        except DataError as exc:
+            errors += exc.findings
+            continue
+        cleaned.append(clean)
+        fixes = sum(1 for f in clean.checks.findings if f.level == "fix")
+        progress.stage("ingest", f"{net.id}: {len(clean.nodes)} nodes, {len(clean.edges)} ties, "
+                       f"{fixes} fix(es)")
+    if errors:
+        raise DataError(errors)
+    return cleaned
+
+
+def _read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
+    notes: dict[str, str] = {}
+    folder = study.root / "notes"
+    if folder.is_dir():
+        for path in sorted(folder.glob("*.md")):
+            if not path.resolve().is_relative_to(study.root):
+                raise ConfigError(f"note {path.name} links outside the study folder", key="notes")
+            notes[path.stem] = _read_text(path, study)
+    summary = _read_text(study.summary, study) if study.summary else None
+    return notes, summary
+
+
+def _read_text(path: Path, study: StudyConfig) -> str:
+    try:
+        return path.read_text(encoding="utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = path.read_bytes()[: exc.start].count(b"\n") + 1
+        raise DataError(Finding("error", study.relative(path), "is not UTF-8 text; save it as "
+                                "UTF-8", line=line)) from None
+
+
+def _build_info() -> dict[str, str]:
+    # No wall-clock time unless SOURCE_DATE_EPOCH asks for one, so rebuilds are byte-identical.
+    epoch = os.environ.get("SOURCE_DATE_EPOCH")
+    built = ""
+    if epoch and epoch.strip().isdigit():
+        built = dt.datetime.fromtimestamp(int(epoch), tz=dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    return {"netfolio": __version__, "built": built}
+
+
+def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> StudyConfig:
+    """Validate config and data without building; pass every finding to ``report``."""
+    study = load_study(project)
+    errors: list[Finding] = []
+    for net in study.networks:
+        try:
+            clean = read_network(study, net)
+        except DataError as exc:
+            errors += exc.findings
+            continue
+        for finding in clean.checks.findings:
+            report(finding)
+    _read_notes(study)
+    if errors:
+        raise DataError(errors)
+    return study
+
+
+def build_study(project: Path | str, *, output: Path | None = None,
+                progress: Progress | None = None) -> BuildResult:
+    """Build the whole site; the previous site stays untouched unless every stage succeeds."""
+    progress = progress or Progress(quiet=True)
+    study = load_study(project)
+    if output is not None:
+        study = _with_output(study, output)
+    progress.stage("config", f"read {study.study_file.name}: {len(study.networks)} network(s)")
+    cleaned = _read_all(study, progress)
+    notes, summary = _read_notes(study)
+
+    analyses = []
+    for clean in cleaned:
+        analysis = analyse_network(clean, communities=study.communities, measures=study.measures,
+                                   seed=study.seed)
+        analyses.append(analysis)
+        progress.stage("analyse", f"{clean.id}: {len(analysis.measures.columns)} measures, "
+                       f"{analysis.communities.count} communities")
+
+    inputs = []
+    files: dict[str, bytes] = {}
+    for clean, analysis in zip(cleaned, analyses):
+        figures = draw_network(analysis)
+        inputs.append(NetworkPageInput(config=clean.config, analysis=analysis, figures=figures))
+        for figure in figures:
+            base = f"networks/{analysis.network_id}/figures/{figure.name}"
+            files[base + ".svg"] = figure.svg
+            files[base + ".png"] = figure.png
+        progress.stage("draw", f"{analysis.network_id}: {len(figures)} figures")
+
+    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=_build_info())
+    progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
+
+    files.update(pages)
+    for analysis in analyses:
+        files.update(network_files(analysis))
+    files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
+    input_files = [p for c in cleaned for p in c.files] + [study.study_file]
+    input_files += [study.root / "notes" / f"{stem}.md" for stem in notes]
+    count = write_site(study.output, files, inputs=input_files)
+    size = sum(len(b) for b in files.values())
+    progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
+    return BuildResult(study=study, output=study.output, files=count, networks=analyses)
+
+
+def _with_output(study: StudyConfig, output: Path) -> StudyConfig:
+    resolved = output.resolve()
+    if resolved == study.root or study.root.is_relative_to(resolved):
+        raise ConfigError(f"--out {output} may not be the study folder or contain it")
+    return replace(study, output=resolved)

@@ -1,0 +1,98 @@
+"""The ``netfolio`` command line: parse arguments, run a verb, turn errors into exit codes."""
+
+from __future__ import annotations
+
+import argparse
+import difflib
+import sys
+import traceback
+from pathlib import Path
+from typing import Sequence
+
+from . import __version__
+from .errors import DataError, Finding, NetfolioError, UsageError
+
+__all__ = ["main"]
+
+VERBS = ("build", "check")
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> None:  # type: ignore[override]
+        raise UsageError(message)
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="netfolio", description="Turn a network-study folder into a complete, "
+                     "self-contained report website.")
+    parser.add_argument("--version", action="version", version=f"netfolio {__version__}")
+    verbs = parser.add_subparsers(dest="verb", metavar="VERB", parser_class=_Parser)
+    build = verbs.add_parser("build", help="check the data, compute everything and write the site")
+    build.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    build.add_argument("--out", type=Path, help="write the site here instead of [study] output")
+    build.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
+    check = verbs.add_parser("check", help="validate study.toml and the data; print every finding")
+    check.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    check.add_argument("--quiet", "-q", action="store_true", help="print errors only")
+    return parser
+
+
+def _suggest_verb(argv: Sequence[str]) -> None:
+    first = next((a for a in argv if not a.startswith("-")), None)
+    if first is not None and first not in VERBS:
+        close = difflib.get_close_matches(first, VERBS, n=1)
+        hint = f"; did you mean '{close[0]}'?" if close else f"; use one of: {', '.join(VERBS)}"
+        raise UsageError(f"unknown command '{first}'{hint}")
+
+
+def _print_finding(finding: Finding) -> None:
+    print(f"{finding.level:<5} {finding.format()}")
+
+
+def _run(argv: Sequence[str]) -> int:
+    from .build import Progress, build_study, check_study  # heavy imports only when needed
+
+    _suggest_verb(argv)
+    args = _parser().parse_args(argv)
+    if args.verb is None:
+        _parser().print_help(sys.stderr)
+        return 2
+    if args.verb == "build":
+        result = build_study(args.project, output=args.out, progress=Progress(quiet=args.quiet))
+        if not args.quiet:
+            print(f"site written to {result.output / 'index.html'}")
+        return 0
+    findings: list[Finding] = []
+    study = check_study(args.project, report=findings.append)
+    if not args.quiet:
+        for finding in findings:
+            _print_finding(finding)
+        print(f"ok: {len(study.networks)} network(s) checked, {len(findings)} finding(s), no errors")
+    return 0
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
+    try:
+        return _run(argv)
+    except DataError as exc:
+        for finding in exc.findings:
+            print(f"error: {finding.format()}", file=sys.stderr)
+        print(f"{len(exc.findings)} error(s); nothing was built and the last site is unchanged",
+              file=sys.stderr)
+        return exc.exit_code
+    except NetfolioError as exc:
+        print(f"error: {exc.format_message()}", file=sys.stderr)
+        return exc.exit_code
+    except KeyboardInterrupt:
+        print("interrupted; the last site is unchanged", file=sys.stderr)
+        return 130
+    except Exception:  # a bug: show everything so it can be reported
+        traceback.print_exc()
+        print("internal error in netfolio; please report it with the traceback above",
+              file=sys.stderr)
+        return 3
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

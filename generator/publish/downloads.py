@@ -1,0 +1,129 @@
+"""The downloadable files of one network: nodes.csv, edges.csv, statistics.csv, network.graphml,
+and the Frictionless Data Package descriptor of every CSV."""
+
+from __future__ import annotations
+
+import json
+import math
+
+import networkx as nx
+import pandas as pd
+
+from ..analyse import MEASURE_INFO, NetworkAnalysis
+
+__all__ = ["datapackage_json", "edges_csv", "graphml", "network_files", "nodes_csv", "statistics_csv"]
+
+
+def _csv(frame: pd.DataFrame) -> bytes:
+    return frame.to_csv(index=False, lineterminator="\n").encode("utf-8")
+
+
+def node_table(analysis: NetworkAnalysis) -> pd.DataFrame:
+    """id, label, node attributes, then the measures, one row per node in node order."""
+    table = analysis.nodes.join(analysis.measures)
+    table.insert(0, "id", table.index.astype(str))
+    return table.reset_index(drop=True)
+
+
+def nodes_csv(analysis: NetworkAnalysis) -> bytes:
+    return _csv(node_table(analysis))
+
+
+def edges_csv(analysis: NetworkAnalysis) -> bytes:
+    return _csv(analysis.edges)
+
+
+def statistics_csv(analysis: NetworkAnalysis) -> bytes:
+    rows = [(s.name, "" if s.value is None else s.value) for s in analysis.statistics]
+    return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+
+
+def _plain_value(value: object) -> object | None:
+    """A value GraphML can hold, or None for a missing one (left out of the file)."""
+    if value is None or value is pd.NA or (isinstance(value, float) and math.isnan(value)):
+        return None
+    if hasattr(value, "item"):  # numpy scalar
+        value = value.item()
+    return value
+
+
+def graphml(analysis: NetworkAnalysis) -> bytes:
+    graph = nx.DiGraph() if analysis.directed else nx.Graph()
+    graph.graph["title"] = analysis.title
+    for row in node_table(analysis).to_dict("records"):
+        node = row.pop("id")
+        graph.add_node(node, **{k: v for k, v in ((k, _plain_value(v)) for k, v in row.items())
+                                if v is not None})
+    for row in analysis.edges.to_dict("records"):
+        extra = {"weight": float(row["weight"])} if "weight" in row else {}
+        graph.add_edge(row["source"], row["target"], **extra)
+    return ("\n".join(nx.generate_graphml(graph)) + "\n").encode("utf-8")
+
+
+def _field_type(series: pd.Series) -> str:
+    if pd.api.types.is_integer_dtype(series.dtype):
+        return "integer"
+    if pd.api.types.is_numeric_dtype(series.dtype):
+        return "number"
+    return "string"
+
+
+def _measure_description(name: str, analysis: NetworkAnalysis) -> str:
+    if name == "community":
+        c = analysis.communities
+        return (f"Community from {c.method} (resolution {c.resolution:g}, best of {c.runs} seeded "
+                f"runs, seed {c.seed}); 1 is the largest.")
+    info = MEASURE_INFO[name]
+    text = f"{info.title}: {info.definition}"
+    if analysis.sampling and name in ("betweenness", "closeness", "harmonic"):
+        text += (f" Estimated from {analysis.sampling.sources} sampled source nodes of "
+                 f"{analysis.sampling.nodes} (Brandes & Pich 2007), seed {analysis.sampling.seed}.")
+    return text
+
+
+def _fields(frame: pd.DataFrame, described: dict[str, str]) -> list[dict[str, str]]:
+    return [{"name": c, "type": _field_type(frame[c]), "description": described.get(c, "")}
+            for c in frame.columns]
+
+
+def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
+    """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV."""
+    resources = []
+    for a in analyses:
+        nodes = node_table(a)
+        described = {"id": "Node id as written in the input.", "label": "Display label."}
+        described |= {c: "Node attribute from the node list." for c in a.attributes}
+        described |= {c: _measure_description(c, a) for c in a.measures.columns}
+        weight_text = (f"Tie weight as written, read as a {'strength' if a.weight_means == 'strength' else 'distance'};"
+                       " repeated ties combined as the methods page says.")
+        resources += [
+            {"name": f"{a.network_id}-nodes", "path": f"{a.network_id}/nodes.csv", "profile": "tabular-data-resource",
+             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
+             "title": f"{a.title}: nodes and measures",
+             "schema": {"fields": _fields(nodes, described), "primaryKey": ["id"]}},
+            {"name": f"{a.network_id}-edges", "path": f"{a.network_id}/edges.csv", "profile": "tabular-data-resource",
+             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
+             "title": f"{a.title}: cleaned ties" + (" (directed: source to target)" if a.directed else ""),
+             "schema": {"fields": _fields(a.edges, {"source": "Node id.", "target": "Node id.",
+                                                    "weight": weight_text})}},
+            {"name": f"{a.network_id}-statistics", "path": f"{a.network_id}/statistics.csv",
+             "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
+             "encoding": "utf-8", "title": f"{a.title}: network statistics",
+             "schema": {"fields": [
+                 {"name": "statistic", "type": "string", "description": "Statistic name; see methods.html."},
+                 {"name": "value", "type": "number", "description": "Value; empty where not defined."}]}},
+        ]
+    descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
+                  "resources": resources}
+    return (json.dumps(descriptor, indent=2, ensure_ascii=False) + "\n").encode("utf-8")
+
+
+def network_files(analysis: NetworkAnalysis) -> dict[str, bytes]:
+    """Every download of one network, keyed by its path under files/<id>/."""
+    prefix = f"files/{analysis.network_id}/"
+    return {
+        prefix + "nodes.csv": nodes_csv(analysis),
+        prefix + "edges.csv": edges_csv(analysis),
+        prefix + "statistics.csv": statistics_csv(analysis),
+        prefix + "network.graphml": graphml(analysis),
+    }
