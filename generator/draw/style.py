@@ -1,0 +1,112 @@
+"""Palette, fonts and the byte-stable save settings every figure shares."""
+
+from __future__ import annotations
+
+import io
+from contextlib import contextmanager
+from typing import Iterator
+
+import matplotlib
+from matplotlib.axes import Axes
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure as CanvasFigure
+
+__all__ = [
+    "BAR_COLOUR",
+    "INK",
+    "MISSING_EDGE",
+    "MISSING_GREY",
+    "NODE_EDGE",
+    "OKABE_ITO",
+    "OTHER_GREY",
+    "PNG_DPI",
+    "QUIET_INK",
+    "SEQUENTIAL_COLORMAP",
+    "TIE_GREY",
+    "drawing_style",
+    "figure_bytes",
+    "new_figure",
+    "quiet_axes",
+]
+
+# Colour-blind-safe qualitative palette, in the authors' order, with black last:
+# Okabe M, Ito K: Color Universal Design (CUD) - how to make figures and presentations that are
+# friendly to colorblind people. J*Fly, 2008. https://jfly.uni-koeln.de/color/
+OKABE_ITO = ("#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "#CC79A7",
+             "#000000")
+OTHER_GREY = "#9A9A9A"  # the groups beyond the seventh, merged
+MISSING_GREY = "#E4E4E4"  # nodes with no value; drawn with a darker rim so they stay visible
+MISSING_EDGE = "#8A8A8A"
+NODE_EDGE = "#FFFFFF"
+TIE_GREY = "#C4C4C4"
+BAR_COLOUR = "#3B6F8F"  # one quiet blue for charts where colour carries no category
+INK = "#262626"
+QUIET_INK = "#6B6B6B"
+
+PNG_DPI = 150
+# Perceptually uniform and still ordered when printed in grey (Smith & van der Walt: A Better
+# Default Colormap for Matplotlib. SciPy 2015 conference talk).
+SEQUENTIAL_COLORMAP = "viridis"
+
+# rcParams applied while a figure is built and saved. Fixing the hash salt makes the SVG ids
+# the same on every run; DejaVu Sans ships with matplotlib, so text metrics (and so every
+# coordinate) do not depend on the fonts of the machine.
+_RC = {
+    "svg.hashsalt": "netfolio",
+    "svg.fonttype": "none",
+    "svg.image_inline": True,
+    "font.family": ["DejaVu Sans"],
+    "font.size": 9.0,
+    "axes.titlesize": 10.5,
+    "axes.titleweight": "bold",
+    "axes.titlelocation": "left",
+    "axes.labelsize": 9.0,
+    "axes.edgecolor": QUIET_INK,
+    "axes.labelcolor": INK,
+    "axes.linewidth": 0.7,
+    "xtick.color": QUIET_INK,
+    "ytick.color": QUIET_INK,
+    "xtick.labelcolor": INK,
+    "ytick.labelcolor": INK,
+    "text.color": INK,
+    "legend.frameon": False,
+    "legend.fontsize": 8.5,
+    "legend.title_fontsize": 9.0,
+    "figure.facecolor": "white",
+    "savefig.facecolor": "white",
+    "path.simplify": False,  # keep every tie, however short
+    "image.interpolation": "nearest",
+}
+
+
+@contextmanager
+def drawing_style() -> Iterator[None]:
+    """Apply the house style for the duration of the block, leaving global rcParams untouched."""
+    with matplotlib.rc_context(_RC):
+        yield
+
+
+def new_figure(width: float, height: float) -> CanvasFigure:
+    """A matplotlib figure on its own Agg canvas: no pyplot, so no global figure registry."""
+    figure = CanvasFigure(figsize=(width, height), dpi=PNG_DPI)
+    FigureCanvasAgg(figure)
+    return figure
+
+
+def figure_bytes(figure: CanvasFigure) -> tuple[bytes, bytes]:
+    """The figure as (SVG, PNG) bytes, with no date or software stamp, then release it."""
+    svg, png = io.BytesIO(), io.BytesIO()
+    options = {"bbox_inches": "tight", "pad_inches": 0.12}
+    figure.savefig(svg, format="svg", metadata={"Date": None, "Creator": None}, **options)
+    figure.savefig(png, format="png", dpi=PNG_DPI, metadata={"Software": None}, **options)
+    figure.clear()
+    return svg.getvalue(), png.getvalue()
+
+
+def quiet_axes(ax: Axes) -> None:
+    """Left and bottom spines only, with a faint horizontal grid behind the data."""
+    for side in ("top", "right"):
+        ax.spines[side].set_visible(False)
+    ax.set_axisbelow(True)
+    ax.grid(axis="y", color="#E6E6E6", linewidth=0.7)
+    ax.tick_params(length=3, width=0.7)

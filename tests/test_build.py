@@ -1,0 +1,154 @@
+"""End to end: build the example study and hold the site to the output contract."""
+
+from __future__ import annotations
+
+import csv
+import hashlib
+import io
+import json
+import re
+import shutil
+from html.parser import HTMLParser
+from pathlib import Path
+from urllib.parse import unquote, urlparse
+
+import pytest
+
+from generator.build import build_study
+from generator.cli import main
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
+NETWORKS = ("advice", "coworking")
+
+
+def copy_example(dest: Path) -> Path:
+    shutil.copytree(EXAMPLE, dest, ignore=shutil.ignore_patterns("output"))
+    return dest
+
+
+def site_files(root: Path) -> dict[str, bytes]:
+    return {p.relative_to(root).as_posix(): p.read_bytes() for p in sorted(root.rglob("*")) if p.is_file()}
+
+
+@pytest.fixture(scope="module")
+def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    study = copy_example(tmp_path_factory.mktemp("a") / "example")
+    result = build_study(study)
+    return result.output
+
+
+class _Links(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.links: list[str] = []
+
+    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        for name, value in attrs:
+            if name in ("href", "src") and value:
+                self.links.append(value)
+
+
+def test_every_page_of_the_contract_exists(site: Path) -> None:
+    expected = ["index.html", "methods.html", "checks.html", "downloads.html", "manifest.json",
+                "notes/index.html", "notes/methods.html", "files/datapackage.json"]
+    for net in NETWORKS:
+        expected += [f"networks/{net}/index.html", f"networks/{net}/nodes.html",
+                     f"files/{net}/nodes.csv", f"files/{net}/edges.csv",
+                     f"files/{net}/statistics.csv", f"files/{net}/network.graphml",
+                     f"networks/{net}/figures/map.svg", f"networks/{net}/figures/map.png"]
+    missing = [p for p in expected if not (site / p).is_file()]
+    assert missing == []
+
+
+def test_every_internal_link_resolves_and_no_page_reaches_outside(site: Path) -> None:
+    broken, external = [], []
+    for page in site.rglob("*.html"):
+        parser = _Links()
+        parser.feed(page.read_text(encoding="utf-8"))
+        for link in parser.links:
+            url = urlparse(link)
+            if url.scheme in ("http", "https"):
+                if url.netloc != "doi.org":  # references on the methods page only
+                    external.append((page.name, link))
+                continue
+            if url.scheme or link.startswith("#"):
+                assert url.scheme in ("", "mailto"), link
+                continue
+            target = (page.parent / unquote(url.path)).resolve()
+            if not target.exists():
+                broken.append((page.relative_to(site).as_posix(), link))
+    assert broken == []
+    assert external == []
+    for asset in list(site.rglob("*.css")) + list(site.rglob("*.js")):
+        assert not re.search(r"https?://", asset.read_text(encoding="utf-8")), asset
+
+
+def test_downloads_have_the_documented_columns(site: Path) -> None:
+    nodes = list(csv.reader(io.StringIO((site / "files/advice/nodes.csv").read_text("utf-8"))))
+    assert nodes[0][:5] == ["id", "label", "clinic", "role", "years_in_post"]
+    # Directed and weighted: in/out columns present, eigenvector left out (not strongly connected).
+    assert nodes[0][5:] == ["degree", "in_degree", "out_degree", "strength", "in_strength",
+                            "out_strength", "betweenness", "closeness", "harmonic", "pagerank",
+                            "coreness", "clustering", "community"]
+    assert len(nodes) - 1 == 61  # 60 staff and one id found only in the ties
+    ids = [row[0] for row in nodes[1:]]
+    assert "s01" in ids and "s61" in ids  # ids stay text, zero padding kept
+    coworking = list(csv.reader(io.StringIO((site / "files/coworking/nodes.csv").read_text("utf-8"))))
+    assert "in_degree" not in coworking[0] and "strength" not in coworking[0]
+    assert "eigenvector" in coworking[0]
+    edges = list(csv.reader(io.StringIO((site / "files/advice/edges.csv").read_text("utf-8"))))
+    assert edges[0] == ["source", "target", "weight"]
+    assert list(csv.reader(io.StringIO((site / "files/coworking/edges.csv").read_text("utf-8"))))[0] \
+        == ["source", "target"]
+    stats = list(csv.reader(io.StringIO((site / "files/advice/statistics.csv").read_text("utf-8"))))
+    assert stats[0] == ["statistic", "value"]
+    names = [row[0] for row in stats[1:]]
+    assert names[:4] == ["nodes", "edges", "density", "reciprocity"]
+    assert "assortativity:clinic" in names and "betweenness_centralization" in names
+    package = json.loads((site / "files/datapackage.json").read_text("utf-8"))
+    for resource in package["resources"]:
+        header = next(csv.reader(io.StringIO((site / "files" / resource["path"]).read_text("utf-8"))))
+        assert [f["name"] for f in resource["schema"]["fields"]] == header
+
+
+def test_manifest_lists_every_file_with_its_size_and_hash(site: Path) -> None:
+    manifest = json.loads((site / "manifest.json").read_text("utf-8"))
+    listed = {entry["path"]: entry for entry in manifest["files"]}
+    on_disk = set(site_files(site)) - {"manifest.json"}
+    assert set(listed) == on_disk
+    for path, entry in listed.items():
+        data = (site / path).read_bytes()
+        assert entry["size"] == len(data)
+        assert entry["sha256"] == hashlib.sha256(data).hexdigest()
+
+
+def test_a_second_build_from_another_folder_is_byte_identical(site: Path, tmp_path: Path) -> None:
+    again = build_study(copy_example(tmp_path / "elsewhere" / "study")).output
+    assert site_files(again) == site_files(site)
+
+
+def test_a_label_with_markup_is_escaped_on_every_page(tmp_path: Path) -> None:
+    study = copy_example(tmp_path / "study")
+    staff = study / "data" / "staff.csv"
+    text = staff.read_text("utf-8").replace("Zoë Marrowby", "<script>alert(1)</script>")
+    assert "<script>" in text
+    staff.write_text(text, "utf-8")
+    out = build_study(study).output
+    pages = list(out.rglob("*.html")) + list(out.rglob("*.svg"))
+    assert pages
+    seen_escaped = False
+    for page in pages:
+        body = page.read_text("utf-8")
+        assert "<script>alert(1)" not in body, page
+        seen_escaped |= "&lt;script&gt;alert(1)&lt;/script&gt;" in body
+    assert seen_escaped  # the label is shown, escaped, somewhere
+
+
+def test_cli_build_prints_a_progress_line_per_stage(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    study = copy_example(tmp_path / "study")
+    assert main(["build", str(study)]) == 0
+    err = capsys.readouterr().err
+    for stage in ("config", "ingest", "analyse", "draw", "render", "publish"):
+        assert re.search(rf"^{stage}\s+.*\(\d+\.\d\d s\)$", err, re.M), stage
+    assert main(["build", str(study), "--quiet"]) == 0
+    assert capsys.readouterr().err == ""

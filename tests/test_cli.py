@@ -1,0 +1,137 @@
+"""The command line: exit codes, messages for bad input, and the last good site left untouched."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from generator.cli import main
+
+STUDY = """
+[study]
+title = "Small study"
+seed = 3
+
+[[network]]
+id = "ties"
+edges = "data/edges.csv"
+nodes = "data/nodes.csv"
+label = "name"
+weight = "w"
+"""
+
+NODES = "id,name,team\na,Ana Sol,red\nb,Ben Ory,red\nc,Cai Lum,blue\nd,Dee Fen,blue\n"
+EDGES = "source,target,w\na,b,2\nb,c,1\nc,d,3\na,c,1\n"
+
+
+def make_study(root: Path, *, edges: str = EDGES, nodes: str = NODES, toml: str = STUDY) -> Path:
+    (root / "data").mkdir(parents=True, exist_ok=True)
+    (root / "study.toml").write_text(toml, encoding="utf-8")
+    (root / "data" / "nodes.csv").write_text(nodes, encoding="utf-8")
+    (root / "data" / "edges.csv").write_text(edges, encoding="utf-8")
+    return root
+
+
+def snapshot(folder: Path) -> dict[str, bytes]:
+    return {p.relative_to(folder).as_posix(): p.read_bytes() for p in folder.rglob("*") if p.is_file()}
+
+
+@pytest.fixture()
+def built(tmp_path: Path) -> Path:
+    study = make_study(tmp_path / "study")
+    assert main(["build", str(study), "--quiet"]) == 0
+    return study
+
+
+BAD_EDGES = [
+    # (edge file, expected pieces of the message: file, line, value)
+    ("source,target,w\na,b,2\nb,c,x\n", ["data/edges.csv", "line 3", "'x'", "not a number"]),
+    ("source,target,w\na,b,2\nb,c,\n", ["data/edges.csv", "line 3", "missing"]),
+    ("source,target,w\na,b,-1\n", ["data/edges.csv", "line 2", "'-1'", "negative"]),
+    ("source,target,w\na,b,inf\n", ["data/edges.csv", "line 2", "'inf'", "infinite"]),
+    ("source,target,w\na,b,2\nc,d,0\n", ["data/edges.csv", "line 3", "'0'", "weight is 0"]),
+    ("source,target,weight\na,b,2\n", ["data/edges.csv", "line 1", "'w'", "'source', 'target', 'weight'"]),
+    ("", ["data/edges.csv", "empty"]),
+    ("source,target,w\n", ["data/edges.csv", "no data rows"]),
+]
+
+
+@pytest.mark.parametrize(("edges", "pieces"), BAD_EDGES)
+def test_bad_edge_file_exits_1_with_file_line_value_and_leaves_site_untouched(
+        built: Path, edges: str, pieces: list[str], capsys: pytest.CaptureFixture) -> None:
+    before = snapshot(built / "output")
+    (built / "data" / "edges.csv").write_text(edges, encoding="utf-8")
+    assert main(["build", str(built)]) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" not in err
+    for piece in pieces:
+        assert piece in err
+    assert snapshot(built / "output") == before
+
+
+def test_duplicate_node_id_is_an_error_naming_both_lines(built: Path, capsys: pytest.CaptureFixture) -> None:
+    before = snapshot(built / "output")
+    (built / "data" / "nodes.csv").write_text(NODES + "b,Bo Twin,red\n", encoding="utf-8")
+    assert main(["build", str(built)]) == 1
+    err = capsys.readouterr().err
+    assert "data/nodes.csv, line 6, column 'id': node id is repeated (first on line 3) (value: 'b')" in err
+    assert snapshot(built / "output") == before
+
+
+def test_file_in_another_encoding_gets_a_clear_error(built: Path, capsys: pytest.CaptureFixture) -> None:
+    (built / "data" / "nodes.csv").write_bytes("id,name,team\na,Zoé,red\n".encode("latin-1"))
+    assert main(["build", str(built)]) == 1
+    err = capsys.readouterr().err
+    assert "data/nodes.csv, line 2" in err and "not UTF-8" in err and "Traceback" not in err
+
+
+def test_config_error_names_the_dotted_key(built: Path, capsys: pytest.CaptureFixture) -> None:
+    (built / "study.toml").write_text(STUDY.replace('weight = "w"', 'weight = "w"\nwieght_means = "strength"'))
+    assert main(["build", str(built)]) == 1
+    err = capsys.readouterr().err
+    assert "network[1].wieght_means" in err and "did you mean 'weight_means'" in err
+
+
+def test_output_folder_not_made_by_netfolio_is_never_overwritten(tmp_path: Path, capsys) -> None:
+    study = make_study(tmp_path / "study")
+    mine = study / "output"
+    mine.mkdir()
+    (mine / "thesis.docx").write_text("precious")
+    assert main(["build", str(study)]) == 1
+    assert "was not made by netfolio" in capsys.readouterr().err
+    assert (mine / "thesis.docx").read_text() == "precious"
+
+
+def test_check_prints_every_finding_without_building(tmp_path: Path, capsys) -> None:
+    study = make_study(tmp_path / "study", edges=EDGES + "a,a,1\na,z,1\nb,a,5\n")
+    assert main(["check", str(study)]) == 0
+    out = capsys.readouterr().out
+    assert "self-loop" in out and "line 6" in out
+    assert "'z' (line 7)" in out
+    assert "repeated ties" in out
+    assert not (study / "output").exists()
+
+
+def test_check_reports_errors_of_every_network(tmp_path: Path, capsys) -> None:
+    toml = STUDY + '\n[[network]]\nid = "second"\nedges = "data/second.csv"\n'
+    study = make_study(tmp_path / "study", toml=toml, edges="source,target,w\na,b,x\n")
+    (study / "data" / "second.csv").write_text("source,target\na,\n")
+    assert main(["check", str(study)]) == 1
+    err = capsys.readouterr().err
+    assert "data/edges.csv, line 2" in err and "data/second.csv, line 2" in err
+
+
+def test_usage_errors_exit_2_with_a_suggestion(capsys) -> None:
+    assert main(["buidl"]) == 2
+    assert "did you mean 'build'" in capsys.readouterr().err
+    assert main(["build", "--bogus"]) == 2
+
+
+def test_python_dash_m_generator_runs_and_an_unknown_folder_exits_1(tmp_path: Path) -> None:
+    run = subprocess.run([sys.executable, "-m", "generator", "check", str(tmp_path / "nowhere")],
+                         capture_output=True, text=True)
+    assert run.returncode == 1
+    assert "no study.toml" in run.stderr and "Traceback" not in run.stderr
