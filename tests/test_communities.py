@@ -1,0 +1,243 @@
+"""Communities (generator/analyse/communities.py): partitions, labelling, seeding, stability and
+modularity checked against networkx and published values."""
+
+from __future__ import annotations
+
+import itertools
+import warnings
+
+import igraph as ig
+import networkx as nx
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from conftest import analyse, analyse_graph, edge_study, load_network, undirected_version_nx
+from generator.analyse.communities import find_communities, run_seeds
+
+EXACT = dict(rel=1e-9, abs=1e-12)
+METHODS = ("leiden", "louvain", "label-propagation")
+
+
+def two_cliques(size: int = 5) -> ig.Graph:
+    """Two complete graphs on ``size`` nodes joined by one tie (vertices 0..size-1, then the
+    rest)."""
+    first = list(itertools.combinations(range(size), 2))
+    second = [(u + size, v + size) for u, v in first]
+    return ig.Graph(n=2 * size, edges=first + second + [(size - 1, size)])
+
+
+def to_networkx(graph: ig.Graph) -> nx.Graph:
+    out = nx.Graph()
+    out.add_nodes_from(range(graph.vcount()))
+    weighted = "strength" in graph.es.attributes()
+    strengths = graph.es["strength"] if weighted else [1.0] * graph.ecount()
+    out.add_edges_from((e.source, e.target, {"strength": s}) for e, s in zip(graph.es, strengths))
+    return out
+
+
+def groups(membership) -> list[set[int]]:
+    return [{v for v, c in enumerate(membership) if c == k} for k in sorted(set(membership))]
+
+
+def find(graph: ig.Graph, *, method: str = "leiden", runs: int = 10, seed: int = 1,
+         resolution: float = 1.0, weighted: bool = False):
+    return find_communities(graph, method=method, resolution=resolution, runs=runs, seed=seed,
+                            weighted=weighted)
+
+
+# ---------------------------------------------------------------------------------------------
+# Partitions and their labels
+
+
+@settings(max_examples=40, deadline=None)
+@given(n=st.integers(min_value=2, max_value=30), p=st.floats(min_value=0.05, max_value=0.6),
+       graph_seed=st.integers(0, 10_000), method=st.sampled_from(METHODS),
+       seed=st.integers(0, 2**31 - 1))
+def test_partition_covers_every_node_once_with_labels_one_to_k_by_size(n, p, graph_seed, method,
+                                                                       seed):
+    graph = ig.Graph(n=n, edges=list(nx.gnp_random_graph(n, p, seed=graph_seed).edges))
+    found = find(graph, method=method, runs=3, seed=seed)
+    assert len(found.membership) == n
+    k = found.count
+    assert set(found.membership) == set(range(1, k + 1))
+    assert found.sizes == tuple(found.membership.count(c) for c in range(1, k + 1))
+    assert sum(found.sizes) == n
+    assert list(found.sizes) == sorted(found.sizes, reverse=True)
+    # equal sizes: the community holding the smaller node comes first
+    firsts = [found.membership.index(c) for c in range(1, k + 1)]
+    for c in range(1, k):
+        if found.sizes[c - 1] == found.sizes[c]:
+            assert firsts[c - 1] < firsts[c]
+
+
+def test_equal_sized_communities_are_numbered_by_their_smallest_member():
+    # Two cliques: the one holding vertex 0 is listed first (DESIGN.md, community labels).
+    graph = two_cliques(4)
+    found = find(graph, runs=5)
+    assert found.membership == (1, 1, 1, 1, 2, 2, 2, 2)
+    reordered = graph.permute_vertices([4, 5, 6, 7, 0, 1, 2, 3])  # the cliques swap places
+    assert find(reordered, runs=5).membership == (1, 1, 1, 1, 2, 2, 2, 2)
+
+
+def test_larger_community_gets_label_one_even_when_it_starts_later():
+    # a triangle on 0..2 and a clique of five on 3..7, joined by one tie
+    edges = [(0, 1), (1, 2), (0, 2), (2, 3)] + list(itertools.combinations(range(3, 8), 2))
+    found = find(ig.Graph(n=8, edges=edges), runs=5)
+    assert found.membership == (2, 2, 2, 1, 1, 1, 1, 1)
+    assert found.sizes == (5, 3)
+
+
+# ---------------------------------------------------------------------------------------------
+# Seeds and stability
+
+
+@pytest.mark.parametrize("method", METHODS)
+def test_same_seed_gives_the_same_result(method):
+    graph = ig.Graph.Famous("Zachary")
+    assert find(graph, method=method, seed=42) == find(graph, method=method, seed=42)
+
+
+def test_run_seeds_derive_from_the_study_seed():
+    assert run_seeds(3, 5) == run_seeds(3, 5)
+    assert run_seeds(3, 5) != run_seeds(4, 5)
+    assert len(set(run_seeds(3, 20))) == 20
+    assert run_seeds(3, 20)[:5] == run_seeds(3, 5)  # more runs extend, not reshuffle
+
+
+def test_a_community_run_leaves_the_global_random_generator_alone():
+    import random
+    random.seed(99)
+    expected = [random.random() for _ in range(3)]
+    random.seed(99)
+    find(ig.Graph.Famous("Zachary"), runs=3)
+    assert [random.random() for _ in range(3)] == expected
+
+
+def test_one_run_agrees_with_itself():
+    found = find(ig.Graph.Famous("Zachary"), runs=1)
+    assert found.runs == 1
+    assert found.mean_ari == 1.0 and found.mean_nmi == pytest.approx(1.0, abs=1e-12)
+    assert found.best_run_share == 1.0 and found.distinct_partitions == 1
+
+
+@pytest.mark.parametrize("method", METHODS)
+def test_two_cliques_joined_by_one_tie_give_two_communities_every_run(method):
+    graph = two_cliques(5)
+    found = find(graph, method=method, runs=10)
+    assert found.membership == (1,) * 5 + (2,) * 5
+    assert found.mean_ari == 1.0 and found.best_run_share == 1.0
+    assert found.distinct_partitions == 1
+    # networkx computes the same modularity for the same two groups
+    expected = nx.community.modularity(to_networkx(graph), groups(found.membership))
+    assert found.modularity == pytest.approx(expected, **EXACT)
+
+
+@pytest.mark.parametrize("method", METHODS)
+def test_agreement_between_runs_lies_between_zero_and_one(method):
+    graph = ig.Graph(n=40, edges=list(nx.gnp_random_graph(40, 0.12, seed=3).edges))
+    found = find(graph, method=method, runs=8)
+    assert 0.0 <= found.mean_ari <= 1.0
+    assert 0.0 <= found.mean_nmi <= 1.0
+    assert 1 <= found.distinct_partitions <= 8
+    assert 0 < found.best_run_share <= 1.0
+    # the kept partition is the best of the runs: share and distinct count fit together
+    assert found.best_run_share * 8 == pytest.approx(round(found.best_run_share * 8))
+
+
+# ---------------------------------------------------------------------------------------------
+# Modularity
+
+
+def test_karate_leiden_reaches_the_best_known_modularity(karate_case):
+    graph, analysis = karate_case
+    found = analysis.communities
+    assert (found.method, found.runs) == ("leiden", 20)
+    # Brandes et al. 2008, On Modularity Clustering (REFERENCES.md, memory): best 0.4198;
+    # a seeded Leiden run reaches 0.419790 (REFERENCES.md, computed).
+    assert found.modularity >= 0.4197
+    assert found.modularity <= 0.41980 + 1e-6
+    # networkx on the same partition
+    expected = nx.community.modularity(graph, groups_by_id(analysis), weight="strength")
+    assert found.modularity == pytest.approx(expected, **EXACT)
+    assert analysis.statistic("modularity") == found.modularity
+    assert analysis.statistic("communities") == found.count
+
+
+def groups_by_id(analysis) -> list[set[str]]:
+    community = analysis.measures["community"]
+    return [set(community[community == k].index) for k in sorted(set(community))]
+
+
+def test_objective_uses_the_resolution_and_modularity_uses_one():
+    graph = ig.Graph.Famous("Zachary")
+    found = find(graph, resolution=2.0, runs=5)
+    parts = groups(found.membership)
+    # networkx modularity with and without the resolution, on the same partition
+    assert found.objective == pytest.approx(
+        nx.community.modularity(to_networkx(graph), parts, resolution=2.0), **EXACT)
+    assert found.modularity == pytest.approx(
+        nx.community.modularity(to_networkx(graph), parts), **EXACT)
+    assert found.count > find(graph, resolution=1.0, runs=5).count  # finer at higher resolution
+
+
+def test_strengths_decide_the_communities_of_a_weighted_network(tmp_path):
+    # Six people all tied to each other; distances 1 inside {a,b,c} and {d,e,f}, 10 across.
+    # Unweighted this is one clique with no structure; with strength = 1/distance it splits.
+    rows = [f"{u},{v},{1 if (u in 'abc') == (v in 'abc') else 10}"
+            for u, v in itertools.combinations("abcdef", 2)]
+    root = edge_study(tmp_path, "source,target,weight\n" + "\n".join(rows) + "\n",
+                      weight="weight", weight_means="distance")
+    analysis = analyse(load_network(root), runs=5)
+    assert list(analysis.measures["community"]) == [1, 1, 1, 2, 2, 2]
+    graph = nx.Graph()
+    for row in rows:
+        u, v, w = row.split(",")
+        graph.add_edge(u, v, strength=1 / float(w))
+    # networkx modularity with strength = 1/distance (DESIGN.md, weights)
+    expected = nx.community.modularity(graph, [set("abc"), set("def")], weight="strength")
+    assert analysis.communities.modularity == pytest.approx(expected, **EXACT)
+
+
+def test_directed_network_communities_use_the_undirected_version_with_summed_strengths(
+        directed_case):
+    graph, analysis = directed_case
+    # networkx on the hand-built undirected version (reciprocal strengths summed)
+    expected = nx.community.modularity(undirected_version_nx(graph), groups_by_id(analysis),
+                                       weight="strength")
+    assert analysis.communities.modularity == pytest.approx(expected, **EXACT)
+
+
+def test_isolates_form_their_own_communities(directed_case):
+    _, analysis = directed_case
+    community = analysis.measures["community"]
+    assert community["z1"] != community["z2"]
+    assert (community == community["z1"]).sum() == 1
+    assert (community == community["z2"]).sum() == 1
+
+
+def test_network_without_ties_puts_every_node_alone_and_has_no_modularity():
+    found = find(ig.Graph(n=4), runs=3)
+    assert found.membership == (1, 2, 3, 4)
+    assert found.modularity is None and found.mean_ari is None
+
+
+@pytest.mark.parametrize("method", ("louvain", "label-propagation"))
+def test_other_methods_run_through_the_analysis(tmp_path, method, karate_case):
+    graph, _ = karate_case
+    analysis = analyse_graph(tmp_path, graph, method=method, runs=5)
+    found = analysis.communities
+    assert found.method == method and found.runs == 5
+    expected = nx.community.modularity(graph, groups_by_id(analysis))  # networkx, same partition
+    assert found.modularity == pytest.approx(expected, **EXACT)
+    assert found.modularity > 0.3  # practice: the two clubs are visible to every method
+
+
+@pytest.mark.xfail(strict=True, reason=(
+    "communities.py calls ig.compare_communities(method='ari'); igraph accepts the partial name "
+    "only with a DeprecationWarning ('Partial string matches of enum members are deprecated "
+    "since igraph 0.9.3'), so a later igraph will reject it; the full name is 'adjusted_rand'"))
+def test_agreement_uses_no_deprecated_igraph_call():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", DeprecationWarning)
+        find(two_cliques(4), runs=2)

@@ -1,0 +1,538 @@
+"""Render stage: every page is written, links resolve, data is escaped, output is reproducible."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import replace
+from html.parser import HTMLParser
+from pathlib import Path
+from urllib.parse import unquote, urlsplit
+
+import pytest
+
+import generator.render as render
+from generator.analyse import Statistic, analyse_network
+from generator.analyse.communities import CommunityResult
+from generator.config import (CommunitiesConfig, MeasuresConfig, NetworkConfig, SiteConfig,
+                              StudyConfig)
+from generator.draw.figure import Figure
+from generator.errors import ConfigError
+from generator.ingest import read_network
+from generator.render import CAUTIONS, NetworkPageInput, render_site
+from generator.render.describe import stability_reading
+from generator.render.display import shown, significant
+from generator.render.network_page import statistic_rows, top_tables
+from generator.render.notes import render_markdown
+from generator.render.theme import packaged_themes
+
+EVIL = "<script>alert(1)</script>"
+BUILD = {"netfolio": "0.0-test", "built": ""}
+
+NODES = f"""id,name,team,years
+a1,Ada Quist,north,3
+a2,{EVIL},north,5
+a3,Cyd Moray,south,
+a4,Dov Lark,south,12
+a5,Eli Fenn,east,1
+a6,Fay Orrin,east,7
+"""
+# Directed and weighted, with a repeated tie (a1->a2 twice) and a self-loop (a3->a3).
+ADVICE = """source,target,weight
+a1,a2,2
+a1,a2,1
+a2,a1,1
+a2,a3,4
+a3,a3,1
+a3,a1,2
+a4,a5,3
+a5,a6,1
+a6,a4,2
+a4,a1,1
+"""
+WORK = """source,target
+a1,a2
+a2,a3
+a1,a3
+a4,a5
+a5,a6
+a3,a4
+"""
+SUMMARY = """# Render test study
+
+The summary talks about <b>bold claims</b> and links to [the other note](extra.md).
+
+<div class="raw">a raw block</div>
+"""
+EXTRA = """# Extra note
+
+| a | b |
+|---|---|
+| 1 | 2 |
+
+```
+<kept as code>
+```
+
+Inline <em onclick="x()">html</em> and a [bad link](javascript:alert(2)).
+"""
+
+
+def _study(root: Path, *, theme: str = "default", allow_html: bool = False,
+           measures: MeasuresConfig | None = None) -> StudyConfig:
+    data = root / "data"
+    data.mkdir(parents=True, exist_ok=True)
+    (data / "people.csv").write_text(NODES, encoding="utf-8")
+    (data / "advice.csv").write_text(ADVICE, encoding="utf-8")
+    (data / "work.csv").write_text(WORK, encoding="utf-8")
+    return StudyConfig(
+        root=root,
+        title="Render <test> & study",
+        output=root / "out",
+        seed=3,
+        networks=(
+            NetworkConfig(id="advice", title="Advice <ties>", edges=data / "advice.csv",
+                          nodes=data / "people.csv", label="name", directed=True, weight="weight",
+                          color_by="team"),
+            NetworkConfig(id="work", title="Works with", edges=data / "work.csv",
+                          nodes=data / "people.csv", label="name"),
+        ),
+        communities=CommunitiesConfig(runs=5),
+        measures=measures or MeasuresConfig(),
+        site=SiteConfig(theme=theme, allow_html=allow_html),
+    )
+
+
+def _figures(network_id: str) -> list[Figure]:
+    return [Figure(name=name, title=f"{network_id} {name}", alt=f"{name} of {EVIL}",
+                   caption=f"What the {name} figure shows.", svg=b"<svg/>", png=b"")
+            for name in ("map", "degree", "betweenness", "communities")]
+
+
+def _inputs(study: StudyConfig) -> list[NetworkPageInput]:
+    items = []
+    for net in study.networks:
+        clean = read_network(study, net)
+        analysis = analyse_network(clean, communities=study.communities, measures=study.measures,
+                                   seed=study.seed)
+        items.append(NetworkPageInput(net, analysis, _figures(net.id)))
+    return items
+
+
+def _render(study: StudyConfig, items: list[NetworkPageInput], **kwargs) -> dict[str, bytes]:
+    options = {"notes": {"index": SUMMARY, "extra": EXTRA}, "summary": SUMMARY,
+               "build_info": BUILD} | kwargs
+    return render_site(study, items, **options)
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory):
+    study = _study(tmp_path_factory.mktemp("study"))
+    items = _inputs(study)
+    return study, items, _render(study, items)
+
+
+class _Page(HTMLParser):
+    """Collects the tags, attributes and text of one page."""
+
+    def __init__(self, text: str):
+        super().__init__(convert_charrefs=True)
+        self.tags: list[tuple[str, dict[str, str | None]]] = []
+        self.text: list[str] = []
+        self.feed(text)
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append((tag, dict(attrs)))
+
+    def handle_startendtag(self, tag, attrs):
+        self.tags.append((tag, dict(attrs)))
+
+    def handle_data(self, data):
+        self.text.append(data)
+
+    def all(self, tag: str) -> list[dict[str, str | None]]:
+        return [attrs for name, attrs in self.tags if name == tag]
+
+
+def _pages(site: dict[str, bytes]) -> dict[str, str]:
+    return {path: data.decode("utf-8") for path, data in site.items() if path.endswith(".html")}
+
+
+def _rows(html: str, table_class: str) -> list[str]:
+    body = re.search(rf'<table class="[^"]*\b{table_class}\b[^"]*".*?<tbody>(.*?)</tbody>', html, re.S)
+    assert body, f"no table of class {table_class}"
+    return re.findall(r"<tr\b", body.group(1))
+
+
+def _downloads(items: list[NetworkPageInput]) -> set[str]:
+    paths = {"files/datapackage.json", "manifest.json"}
+    for item in items:
+        paths |= {f"files/{item.id}/{name}" for name in
+                  ("nodes.csv", "edges.csv", "statistics.csv", "network.graphml")}
+        paths |= {f"networks/{item.id}/figures/{f.name}.{ext}" for f in item.figures
+                  for ext in ("svg", "png")}
+    return paths
+
+
+# ---------------------------------------------------------------------------------------------
+# The site as a whole
+
+
+def test_public_api_is_small_and_sorted():
+    assert render.__all__ == sorted(render.__all__)
+    assert {"NetworkPageInput", "render_site"} <= set(render.__all__)
+
+
+def test_every_expected_page_and_static_file_is_rendered(built):
+    _, _, site = built
+    expected = {"index.html", "methods.html", "checks.html", "downloads.html",
+                "networks/advice/index.html", "networks/advice/nodes.html",
+                "networks/work/index.html", "networks/work/nodes.html",
+                "notes/index.html", "notes/extra.html", "static/site.css", "static/table.js"}
+    assert expected <= set(site)
+    assert all(isinstance(data, bytes) and data for data in site.values())
+    assert list(site) == sorted(site)
+
+
+def test_every_relative_link_points_at_a_page_or_a_download(built):
+    _, items, site = built
+    targets = set(site) | _downloads(items)
+    for path, html in _pages(site).items():
+        page = _Page(html)
+        ids = {attrs["id"] for _, attrs in page.tags if attrs.get("id")}
+        links = [a.get("href") for a in page.all("a")] + [a.get("href") for a in page.all("link")]
+        links += [a.get("src") for a in page.all("img")] + [a.get("src") for a in page.all("script")]
+        for link in filter(None, links):
+            parts = urlsplit(link)
+            if parts.scheme:
+                assert link.startswith("https://doi.org/"), (path, link)
+                continue
+            if not parts.path:
+                assert parts.fragment in ids, (path, link)
+                continue
+            resolved = Path(Path(path).parent, unquote(parts.path)).as_posix()
+            normalised = Path(*[p for p in resolved.split("/")]).as_posix()
+            stack: list[str] = []
+            for part in normalised.split("/"):
+                if part == "..":
+                    assert stack, f"{path}: {link} leaves the site"
+                    stack.pop()
+                elif part not in ("", "."):
+                    stack.append(part)
+            assert "/".join(stack) in targets, (path, link)
+
+
+def test_no_external_address_except_doi_links(built):
+    study, items, site = built
+    for path, html in _pages(site).items():
+        for address in re.findall(r"""(?:href|src)=["']?([a-z]+:[^"' >]*)""", html):
+            assert address.startswith("https://doi.org/"), (path, address)
+    methods = site["methods.html"].decode()
+    assert 'href="https://doi.org/10.2307/3033543"' in methods
+    plain = _render(study, items, link_dois=False)
+    for path, html in _pages(plain).items():
+        assert "https://" not in html and "http://" not in html, path
+    assert "doi:10.2307/3033543" in plain["methods.html"].decode()
+
+
+def test_rendering_twice_gives_identical_bytes(built):
+    study, items, site = built
+    assert _render(study, items) == site
+
+
+def test_built_date_appears_only_when_given(built):
+    study, items, site = built
+    assert b"Built " not in site["index.html"]
+    dated = _render(study, items, build_info={"netfolio": "0.0-test", "built": "2024-05-01"})
+    assert "Built 2024-05-01" in dated["index.html"].decode()
+    assert {p: d for p, d in dated.items() if p != "index.html"} == \
+        {p: d for p, d in site.items() if p != "index.html"}
+
+
+def test_every_page_shares_the_navigation_and_marks_the_current_page(built):
+    _, _, site = built
+    for path, html in _pages(site).items():
+        page = _Page(html)
+        nav_links = [a for a in page.all("a") if a.get("href", "").endswith(
+            ("index.html", "methods.html", "checks.html", "downloads.html"))]
+        assert len(nav_links) >= 6, path
+        current = [a["href"] for a in page.all("a") if a.get("aria-current") == "page"]
+        # the site navigation, or a network's own page list, names this page (and nothing else)
+        assert current and {Path(urlsplit(h).path).name for h in current} == {Path(path).name}, path
+    nodes_page = _Page(site["networks/advice/nodes.html"].decode())
+    section = [a["href"] for a in nodes_page.all("a") if a.get("aria-current") == "true"]
+    assert set(section) == {"index.html"}  # the network's results page, in both navigations
+
+
+def test_pages_are_accessible_in_structure(built):
+    _, _, site = built
+    for path, html in _pages(site).items():
+        page = _Page(html)
+        assert page.all("html")[0].get("lang") == "en", path
+        assert page.all("a")[0].get("href") == "#main", path  # the skip link comes first
+        assert page.all("main")[0].get("id") == "main", path
+        assert len(page.all("h1")) == 1, path
+        assert all(img.get("alt") for img in page.all("img")), path
+        assert all(th.get("scope") in ("col", "row") for th in page.all("th")), path
+
+
+# ---------------------------------------------------------------------------------------------
+# Escaping
+
+
+def test_a_script_label_appears_only_escaped_on_every_page(built):
+    _, _, site = built
+    for path, html in _pages(site).items():
+        assert EVIL not in html, path
+        assert "<script>" not in html, path
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in site["networks/advice/nodes.html"].decode()
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in site["networks/advice/index.html"].decode()
+    assert "Render &lt;test&gt; &amp; study" in site["index.html"].decode()
+
+
+def test_markdown_raw_html_is_escaped_by_default(built):
+    _, _, site = built
+    front = site["index.html"].decode()
+    assert "&lt;b&gt;bold claims&lt;/b&gt;" in front and "<b>bold claims</b>" not in front
+    assert '&lt;div class="raw"&gt;' in front
+    extra = site["notes/extra.html"].decode()
+    assert "&lt;em onclick" in extra and "<em onclick" not in extra
+    assert "<table>" in extra and '<th scope="col">a</th>' in extra  # the tables extension ran
+    assert "&lt;kept as code&gt;" in extra  # fenced code stays escaped
+    assert "javascript:" not in extra
+
+
+def test_allow_html_keeps_raw_html(tmp_path):
+    study = _study(tmp_path, allow_html=True)
+    site = _render(study, _inputs(study))
+    assert "<b>bold claims</b>" in site["index.html"].decode()
+    assert '<div class="raw">a raw block</div>' in site["index.html"].decode()
+    extra = site["notes/extra.html"].decode()
+    assert '<em onclick="x()">html</em>' in extra
+    assert "javascript:" not in extra  # links that run code are dropped even then
+    assert EVIL not in site["networks/advice/nodes.html"].decode()  # data is always escaped
+
+
+def test_markdown_links_to_notes_point_at_their_pages():
+    note = render_markdown("[m](methods.md#how) [x](missing.md) [w](https://example.org/a.md)",
+                           note_href=lambda stem: f"notes/{stem}.html" if stem == "methods" else None)
+    assert 'href="notes/methods.html#how"' in note.html
+    assert 'href="missing.md"' in note.html
+    assert 'href="https://example.org/a.md"' in note.html
+
+
+def test_summary_drops_a_heading_that_repeats_the_study_title_and_demotes_the_rest():
+    note = render_markdown("# My Study\n\n## Part\n\ntext", shift_headings=1, drop_title="my study")
+    assert "<h1>" not in note.html and "My Study" not in note.html
+    assert "<h3>Part</h3>" in note.html
+    assert note.title == "My Study"
+
+
+def test_a_note_without_a_heading_gets_one_from_its_name(tmp_path):
+    study = _study(tmp_path)
+    site = _render(study, _inputs(study), notes={"field-work": "Just text."})
+    page = _Page(site["notes/field-work.html"].decode())
+    assert len(page.all("h1")) == 1
+    assert "Field work" in "".join(page.text)
+
+
+# ---------------------------------------------------------------------------------------------
+# Page content
+
+
+def test_front_page_carries_the_cautions_and_the_glance_table(built):
+    _, items, site = built
+    front = site["index.html"].decode()
+    for caution in CAUTIONS:
+        assert caution.replace("'", "&#39;") in front
+    for words in ("personal data", "consent", "ethics approval", "Pseudonymised does not mean "
+                  "anonymous", "not a person&#39;s worth or performance"):
+        assert words in front
+    assert len(_rows(front, "data")) == len(items)
+    assert "networks/advice/index.html" in front and "networks/work/nodes.html" in front
+
+
+def test_statistics_table_has_one_row_per_statistic(built):
+    _, items, site = built
+    for item in items:
+        html = site[f"networks/{item.id}/index.html"].decode()
+        assert len(_rows(html, "statistics")) == len(item.analysis.statistics)
+
+
+def test_undefined_statistic_shows_not_defined_and_why():
+    rows = statistic_rows((Statistic("nodes", 4), Statistic("assortativity:team", None,
+                                                            "not defined: every node has the same value")))
+    assert rows[0].value == "4" and rows[0].defined
+    assert rows[1].value == "not defined" and not rows[1].defined
+    assert rows[1].reading == "Every node has the same value."
+    assert rows[1].title == "Attribute assortativity: team"
+
+
+def test_nodes_page_has_one_row_per_node_and_sort_values(built):
+    _, items, site = built
+    for item in items:
+        html = site[f"networks/{item.id}/nodes.html"].decode()
+        assert len(_rows(html, "nodes")) == len(item.analysis.nodes)
+        assert "table.js" in html and "data-sortable" in html
+    advice = site["networks/advice/nodes.html"].decode()
+    pagerank = float(items[0].analysis.measures.loc["a1", "pagerank"])
+    assert f'data-value="{pagerank!r}">{significant(pagerank)}<' in advice
+
+
+def test_network_page_shows_figures_top_nodes_and_communities(built):
+    _, items, site = built
+    html = site["networks/advice/index.html"].decode()
+    page = _Page(html)
+    assert [img["src"] for img in page.all("img")] == [
+        "figures/map.svg", "figures/degree.svg", "figures/betweenness.svg", "figures/communities.svg"]
+    assert "figures/map.png" in html
+    measured = [c for c in items[0].analysis.measures.columns if c != "community"]
+    assert len(re.findall(r'<table class="data compact" id="top-', html)) == len(measured)
+    assert "Mean adjusted Rand index" in html and "Runs that found this partition" in html
+    assert "Leiden" in html
+
+
+def test_omitted_measures_are_explained(built):
+    _, items, site = built
+    advice = items[0].analysis
+    assert "eigenvector" in advice.omitted  # directed and not strongly connected
+    assert "Not computed for this network" in site["networks/advice/index.html"].decode()
+    assert "Left out" in site["methods.html"].decode()
+
+
+def test_path_sampling_is_reported(tmp_path):
+    study = _study(tmp_path, measures=MeasuresConfig(exact_paths_up_to=3, path_sample_sources=2))
+    site = _render(study, _inputs(study))
+    assert "randomly chosen source nodes" in site["networks/work/index.html"].decode()
+    assert "randomly chosen source nodes" in site["networks/work/nodes.html"].decode()
+    assert "Brandes, U. &amp; Pich, C." in site["methods.html"].decode()
+    assert "sampled source nodes" in site["downloads.html"].decode()
+
+
+def test_methods_page_is_written_from_what_ran(built):
+    _, items, site = built
+    html = site["methods.html"].decode()
+    for item in items:
+        for column in item.analysis.measures.columns:
+            assert f"<code>{column}</code>" in html
+        for name, version in item.analysis.versions.items():
+            assert f"<th scope=\"row\">{name}</th><td>{version}</td>" in html
+    assert "combined by sum" in html and "Self-loops" in html
+    assert "Fruchterman-Reingold" in html and "seed 3" in html
+    references = re.findall(r'<li id="ref-([a-z0-9]+)">', html)
+    expected = list(dict.fromkeys(r.key for item in items for r in item.analysis.references))
+    assert references == expected
+
+
+def test_checks_page_lists_fixes_and_says_when_none_were_needed(built):
+    _, items, site = built
+    html = site["checks.html"].decode()
+    assert "self-loop" in html and "repeated ties merged" in html
+    assert "No fixes were needed." in html  # the co-working network needed none
+    assert len(_rows(html, "findings")) == sum(len(i.analysis.findings) for i in items)
+
+
+def test_downloads_page_describes_every_file_and_the_columns(built):
+    _, items, site = built
+    html = site["downloads.html"].decode()
+    for path in _downloads(items):
+        assert f'href="{path}"' in html, path
+    for column in ("id", "label", "team", "years", *items[0].analysis.measures.columns):
+        assert f"<code>{column}</code>" in html
+    assert "<code>weight</code>" in html
+
+
+# ---------------------------------------------------------------------------------------------
+# Themes
+
+
+def test_the_default_theme_ships_inside_the_package():
+    assert "default" in packaged_themes()
+
+
+def test_an_unknown_theme_is_a_config_error(tmp_path):
+    study = _study(tmp_path, theme="defualt")
+    with pytest.raises(ConfigError) as caught:
+        _render(study, [])
+    assert caught.value.key == "site.theme"
+    assert "did you mean 'default'" in caught.value.format_message()
+
+
+def test_a_user_theme_folder_overrides_one_template_and_adds_static_files(tmp_path):
+    study = _study(tmp_path, theme="my-theme")
+    templates = tmp_path / "my-theme" / "templates"
+    templates.mkdir(parents=True)
+    (templates / "note.html").write_text(
+        '{% extends "base.html" %}{% block content %}<h1>Custom {{ page.title }}</h1>'
+        "<article>{{ body }}</article>{% endblock %}", encoding="utf-8")
+    (tmp_path / "my-theme" / "static").mkdir()
+    (tmp_path / "my-theme" / "static" / "extra.css").write_text("body{}", encoding="utf-8")
+    site = _render(study, _inputs(study))
+    assert "<h1>Custom Extra note</h1>" in site["notes/extra.html"].decode()
+    assert "Read and share with care" in site["index.html"].decode()  # default index.html
+    assert site["static/extra.css"] == b"body{}" and "static/site.css" in site
+
+
+def test_a_broken_user_template_is_a_config_error_naming_the_template(tmp_path):
+    study = _study(tmp_path, theme="broken")
+    (tmp_path / "broken" / "templates").mkdir(parents=True)
+    (tmp_path / "broken" / "templates" / "checks.html").write_text("{% if %}", encoding="utf-8")
+    with pytest.raises(ConfigError, match="checks.html"):
+        _render(study, _inputs(study))
+
+
+# ---------------------------------------------------------------------------------------------
+# Small pieces
+
+
+@pytest.mark.parametrize(("value", "text"), [
+    (0.0147701, "0.01477"), (0.5, "0.5"), (12.0, "12"), (12345.678, "12,350"), (9.99996, "10"),
+    (-0.0079912, "-0.007991"), (0.0000123456, "1.235e-05"), (1.0, "1"), (0.0, "0"),
+])
+def test_numbers_show_four_significant_digits(value, text):
+    assert significant(value) == text
+
+
+def test_missing_values_show_as_a_dash():
+    import pandas as pd
+    assert shown(pd.NA) == shown(None) == shown(float("nan")) == "\u2014"
+    assert shown(7) == "7" and shown("north") == "north"
+
+
+def test_top_tables_rank_ties_together_and_count_ties_past_the_cut(built):
+    _, items, _ = built
+    tables = {t.column: t for t in top_tables(items[1].analysis, count=2)}
+    degree = tables["degree"]
+    values = sorted(items[1].analysis.measures["degree"], reverse=True)
+    assert [r.value for r in degree.rows] == [str(v) for v in values[:2]]
+    assert degree.more_tied == sum(1 for v in values[2:] if v == values[1])
+    ranks = [r.rank for r in degree.rows]
+    assert ranks[0] == 1 and (ranks[1] == 1) == (values[0] == values[1])
+    assert "community" not in tables
+
+
+def _partition(**changes) -> CommunityResult:
+    base = CommunityResult("leiden", 1.0, 20, 1, (1, 1, 2, 2), (2, 2), 0.4, 0.4, 1.0, 1.0, 1, 1.0)
+    return replace(base, **changes)
+
+
+def test_stability_reading_follows_agreement_between_runs():
+    assert "All 20 runs found exactly the same" in stability_reading(_partition())
+    assert "agreed closely" in stability_reading(_partition(mean_ari=0.95, distinct_partitions=2,
+                                                            best_run_share=0.8))
+    assert "mostly agreed" in stability_reading(_partition(mean_ari=0.8, distinct_partitions=4))
+    assert "tentative" in stability_reading(_partition(mean_ari=0.3, distinct_partitions=9))
+    assert "no ties" in stability_reading(_partition(mean_ari=None, mean_nmi=None))
+    assert "Only one run" in stability_reading(_partition(runs=1))
+
+
+def test_real_figures_from_the_draw_stage_are_shown_with_their_alt_text(tmp_path):
+    draw = pytest.importorskip("generator.draw")
+    if not hasattr(draw, "draw_network"):
+        pytest.skip("the draw stage has no draw_network yet")
+    study = _study(tmp_path)
+    items = [replace(item, figures=draw.draw_network(item.analysis)) for item in _inputs(study)]
+    site = _render(study, items)
+    page = _Page(site["networks/work/index.html"].decode())
+    images = page.all("img")
+    assert [img["src"] for img in images] == [f"figures/{f.name}.svg" for f in items[1].figures]
+    assert all(img["alt"] for img in images)
