@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import difflib
+import math
 import re
 import sys
 from dataclasses import dataclass, field
@@ -224,7 +225,7 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     allowed = tuple(f.name for f in NetworkConfig.__dataclass_fields__.values())
     t = _Table(data, dotted, allowed)
     net_id = t.get("id", str, required=True)
-    if not _ID.match(net_id):
+    if not _ID.fullmatch(net_id):
         raise ConfigError(f"'{net_id}' may hold only a-z, 0-9 and '-'", key=f"{dotted}.id")
     edges, matrix = t.get("edges", str), t.get("matrix", str)
     if (edges is None) == (matrix is None):
@@ -327,7 +328,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
 
     c = _Table(raw.get("communities", {}), "communities", ("method", "resolution", "runs"))
     resolution = c.get("resolution", float, 1.0)
-    if resolution <= 0:
+    if not (math.isfinite(resolution) and resolution > 0):
         raise ConfigError(f"must be above 0, got {resolution}", key="communities.resolution")
     g = _Table(raw.get("significance", {}), "significance", ("null_samples",))
     m = _Table(raw.get("measures", {}), "measures", ("exact_paths_up_to", "path_sample_sources"))
@@ -337,6 +338,12 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         raise ConfigError("must be a list of column names", key="sharing.drop")
     si = _Table(raw.get("site", {}), "site", ("theme", "allow_html"))
     summary_path = _existing_file(root, summary, "study.summary") if summary else None
+    if summary_path is not None and summary_path.is_relative_to(output):
+        raise ConfigError(f"'{summary}' lies inside the output folder, which is replaced on every "
+                          "build", key="study.output")
+    if (root / "notes").resolve().is_relative_to(output):
+        raise ConfigError(f"the output folder '{output_raw}' may not hold the notes folder",
+                          key="study.output")
 
     return StudyConfig(
         root=root,

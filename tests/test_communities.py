@@ -233,10 +233,6 @@ def test_other_methods_run_through_the_analysis(tmp_path, method, karate_case):
     assert found.modularity > 0.3  # practice: the two clubs are visible to every method
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "communities.py calls ig.compare_communities(method='ari'); igraph accepts the partial name "
-    "only with a DeprecationWarning ('Partial string matches of enum members are deprecated "
-    "since igraph 0.9.3'), so a later igraph will reject it; the full name is 'adjusted_rand'"))
 def test_agreement_uses_no_deprecated_igraph_call():
     with warnings.catch_warnings():
         warnings.simplefilter("error", DeprecationWarning)

@@ -190,9 +190,6 @@ def test_network_id_outside_a_to_z_digits_and_dash_is_refused(tmp_path, bad_id):
     assert "may hold only a-z, 0-9 and '-'" in str(error)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "config._ID uses re.match with '^[a-z0-9-]+$'; '$' also matches before a final newline, so "
-    "id = \"advice\\n\" is accepted and a newline ends up in page paths (use fullmatch or \\Z)"))
 def test_network_id_ending_in_a_newline_is_refused(tmp_path):
     error = config_error(study_with(tmp_path, networks=[net(id="advice\n")]))
     assert error.key == "network[1].id"
@@ -253,9 +250,6 @@ def test_values_of_the_wrong_type_or_range_are_refused(tmp_path, table, key, val
     assert str(error) == message
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "config accepts resolution = nan (TOML allows it): 'nan <= 0' is False, so the check in "
-    "_study lets it through and every community run gets a NaN resolution"))
 def test_resolution_that_is_not_a_number_is_refused(tmp_path):
     (tmp_path / "data").mkdir()
     (tmp_path / "data/edges.csv").write_text(EDGES)
@@ -359,10 +353,6 @@ def test_output_folder_holding_a_data_file_is_refused(tmp_path):
     assert str(error) == "'data/edges.csv' lies inside the output folder"
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "DESIGN.md: the output folder may not hold any input file; config checks only the network "
-    "data files, so a summary note inside the output folder is accepted (and would be deleted "
-    "by the next build's swap)"))
 def test_output_folder_holding_the_summary_note_is_refused(tmp_path):
     root = study_with(tmp_path, study={"title": "T", "summary": "site/index.md", "output": "site"},
                       files={"site/index.md": "# Front page\n"})

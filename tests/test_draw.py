@@ -286,6 +286,12 @@ def test_eight_groups_use_the_whole_palette_without_other():
     assert not any(g.label.startswith("other") for g in groups)
 
 
+def test_equal_communities_keep_their_numbering_when_coloured():
+    colours, groups = colour_groups([c for c in range(1, 11) for _ in range(3)])
+    assert [g.label for g in groups] == ["1", "2", "3", "4", "5", "6", "7", "other (3 groups)"]
+    assert colours[3 * 9] == OTHER_GREY  # community 10 is among the "other" groups
+
+
 def test_missing_values_are_grey_and_listed_as_no_value():
     colours, groups = colour_groups(["a", None, "b", "a", pd.NA])
     assert colours == [OKABE_ITO[0], MISSING_GREY, OKABE_ITO[1], OKABE_ITO[0], MISSING_GREY]

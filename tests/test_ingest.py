@@ -119,10 +119,6 @@ def test_label_column_becomes_the_label(tmp_path):
     assert clean.attributes == ()
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "ingest types the label column like any attribute: a label column whose cells all look "
-    "like numbers is converted to Int64 and back, so the label '007' is shown as '7' and "
-    "'1.50' as '1.5' (network.py read_network: labels = attrs[net.label].astype('string'))"))
 def test_labels_that_look_like_numbers_stay_as_written(tmp_path):
     nodes = "id,badge\na,007\nb,010\n"
     clean = load_network(edge_study(tmp_path, "source,target\na,b\n", nodes=nodes, label="badge"))
@@ -367,10 +363,6 @@ def test_bad_matrix_cell_names_its_line_and_column_label(tmp_path):
     assert finding.message == "weight is not a number"
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "ingest keeps an undirected matrix cell when natural_key(row) <= natural_key(column); ids "
-    "such as 'a1' and 'a01' have equal natural keys, so both cells of the pair are kept and "
-    "summed as a 'repeated tie': the weight 3 becomes 6 and a bogus fix is reported"))
 def test_undirected_matrix_ids_with_equal_natural_order_keep_one_tie(tmp_path):
     clean = load_network(matrix_study(tmp_path, ",a1,a01\na1,0,3\na01,3,0\n"))
     assert [w for _, _, w in edge_rows(clean)] == [3.0]
@@ -443,11 +435,6 @@ def test_shuffled_and_flipped_undirected_rows_give_identical_results(tmp_path, s
     _same(base, other)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "measures.py calls igraph eigenvector_centrality outside the seeded generator used for "
-    "communities and layout; igraph's ARPACK start vector comes from Python's global random "
-    "module (seeded from the OS in every new process), so eigenvector values differ in the "
-    "last bits (about 1e-16 on the karate club) between runs of the same inputs and seed"))
 def test_analysis_does_not_depend_on_the_global_random_generator(tmp_path):
     graph = karate_graph()
     clean = load_network(edge_study(tmp_path, csv_text(("source", "target"), graph.edges)))
@@ -459,10 +446,6 @@ def test_analysis_does_not_depend_on_the_global_random_generator(tmp_path):
     pd.testing.assert_frame_equal(results[0], results[1], check_exact=True)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "read_network orders nodes with sorted(set(...), key=natural_key); ids with equal natural "
-    "keys ('a1' and 'a01') keep set order, which follows Python's per-process string hashing, "
-    "so node order (and every output keyed by it) changes between runs of the same inputs"))
 def test_node_order_is_the_same_in_every_process(tmp_path):
     (tmp_path / "data").mkdir()
     (tmp_path / "data" / "edges.csv").write_text("source,target\na1,b\na01,b\n")

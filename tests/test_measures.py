@@ -277,10 +277,6 @@ def test_sampled_betweenness_is_seeded_and_repeatable(tmp_path, karate_case):
     assert by_id(first, "betweenness") == by_id(again, "betweenness")
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "measures.py scales sampled closeness/harmonic sums by (n-1)/k for every node, but a node "
-    "that is itself a sampled source is reached by only k-1 sampled sources; with all n nodes "
-    "sampled every value comes out (n-1)/n too small (complete graph on 12: 11/12, not 1)"))
 def test_sampling_every_node_as_source_gives_exact_closeness_and_harmonic(tmp_path):
     graph = nx.complete_graph([f"k{i}" for i in range(12)])
     analysis = analyse_graph(tmp_path, graph, exact_up_to=5, sample_sources=12, runs=2)
@@ -291,10 +287,6 @@ def test_sampling_every_node_as_source_gives_exact_closeness_and_harmonic(tmp_pa
     assert list(analysis.measures["harmonic"]) == pytest.approx([1.0] * 12, **EXACT)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "sampled harmonic/closeness are biased low for nodes that are sampled sources: the scale "
-    "(n-1)/k should be (n-1)/(k-1) for them; on a complete graph with 6 of 12 sources the "
-    "sampled nodes get 5/6 instead of 1"))
 def test_sampled_closeness_on_complete_graph_is_one_for_every_node(tmp_path):
     graph = nx.complete_graph([f"k{i}" for i in range(12)])
     analysis = analyse_graph(tmp_path, graph, exact_up_to=5, sample_sources=6, runs=2)
@@ -303,11 +295,6 @@ def test_sampled_closeness_on_complete_graph_is_one_for_every_node(tmp_path):
     assert list(analysis.measures["closeness"]) == pytest.approx([1.0] * 12, **EXACT)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "eigenvector is computed on undirected networks with several components that have ties; the "
-    "leading eigenvector then gives 0 to every node outside the component with the largest "
-    "eigenvalue (a whole triangle scores 0 beside a K4), the same defect the design avoids for "
-    "directed networks by leaving the column out; networkx refuses such graphs (gh-6888)"))
 def test_eigenvector_gives_no_whole_component_zero_in_a_disconnected_undirected_network(tmp_path):
     # a triangle {a, b, c} and, apart from it, a complete graph on {d, e, f, g}
     edges = "source,target\na,b\nb,c\nc,a\nd,e\ne,f\nf,d\nd,g\ne,g\nf,g\n"

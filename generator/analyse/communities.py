@@ -4,11 +4,11 @@ agreement between runs as a measure of stability."""
 from __future__ import annotations
 
 import random
-from contextlib import contextmanager
 from dataclasses import dataclass
-from typing import Iterator
 
 import igraph as ig
+
+from .seeding import seeded_igraph
 
 __all__ = ["COMMUNITY_REFERENCES", "CommunityResult", "find_communities", "run_seeds"]
 
@@ -52,20 +52,9 @@ def run_seeds(seed: int, runs: int) -> list[int]:
     return [rng.randrange(2**31) for _ in range(runs)]
 
 
-@contextmanager
-def _igraph_random(seed: int) -> Iterator[None]:
-    # igraph draws from Python's random module unless told otherwise; give it a private,
-    # seeded generator and put the default back afterwards.
-    ig.set_random_number_generator(random.Random(seed))
-    try:
-        yield
-    finally:
-        ig.set_random_number_generator(random)
-
-
 def _one_run(graph: ig.Graph, method: str, resolution: float, weights: list[float] | None,
              seed: int) -> list[int]:
-    with _igraph_random(seed):
+    with seeded_igraph(seed):
         if method == "leiden":
             # The default objective is CPM, which splits everything into singletons; ask for
             # modularity and iterate until the partition stops changing.
@@ -112,7 +101,7 @@ def find_communities(undirected: ig.Graph, *, method: str, resolution: float, ru
     best_index = max(range(runs), key=lambda i: (round(scores[i], 12), -i))
     best = partitions[best_index]
     sizes = tuple(best.count(k) for k in range(1, max(best) + 1))
-    ari = [ig.compare_communities(list(best), list(p), method="ari") for p in partitions]
+    ari = [ig.compare_communities(list(best), list(p), method="adjusted_rand") for p in partitions]
     nmi = [ig.compare_communities(list(best), list(p), method="nmi") for p in partitions]
     distinct = len(set(partitions))
     return CommunityResult(

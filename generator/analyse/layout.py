@@ -6,8 +6,8 @@ import random
 
 import igraph as ig
 
-from .communities import _igraph_random
 from .graph import undirected_version
+from .seeding import seeded_igraph
 
 __all__ = ["network_layout"]
 
@@ -21,7 +21,7 @@ def network_layout(graph: ig.Graph, *, seed: int, weighted: bool) -> list[tuple[
         return []
     start = random.Random(f"layout:{seed}")
     initial = [[start.uniform(-1, 1), start.uniform(-1, 1)] for _ in range(n)]
-    with _igraph_random(seed):
+    with seeded_igraph(seed):
         layout = undirected.layout_fruchterman_reingold(
             seed=initial, weights=undirected.es["strength"] if weighted else None, niter=1000,
             grid=False)

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import math
 import random
+import warnings
 from dataclasses import dataclass, field
 
 import igraph as ig
@@ -12,6 +13,7 @@ import numpy as np
 import pandas as pd
 
 from .graph import undirected_version
+from .seeding import seeded_igraph
 
 __all__ = ["MEASURE_INFO", "MeasureInfo", "NodeMeasures", "PathSampling", "node_measures"]
 
@@ -82,6 +84,28 @@ class NodeMeasures:
     sampling: PathSampling | None = None
 
 
+def _eigenvector_undefined(graph: ig.Graph) -> str:
+    """Why eigenvector centrality is not reported, or "" when it is.
+
+    On a network of several parts the leading eigenvector lives on one part and gives exactly zero
+    to every other, which reads as "unimportant" when it means "not measured"; so it is reported
+    only for a strongly connected directed network, or an undirected one whose ties form a single
+    component (isolates then score 0)."""
+    if graph.ecount() == 0:
+        return "the network has no ties"
+    if graph.is_directed():
+        if not graph.is_connected(mode="strong"):
+            return ("the network is directed and not strongly connected, so the leading "
+                    "eigenvector gives zero to every node outside one strong component; see "
+                    "PageRank instead")
+        return ""
+    with_ties = sum(1 for size in graph.connected_components().sizes() if size > 1)
+    if with_ties > 1:
+        return (f"the ties form {with_ties} separate components, so the leading eigenvector gives "
+                "zero to every node outside one of them; see PageRank or harmonic closeness instead")
+    return ""
+
+
 def _freeman_betweenness(raw: list[float], n: int, directed: bool) -> list[float]:
     # igraph's own normalized=True divides by n(n-1)/2, not Freeman's factor; do it here.
     if n < 3:
@@ -148,25 +172,29 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
     columns["betweenness"] = _freeman_betweenness(raw, n, directed)
 
     reach, total, inverse = _reach_and_distance_sums(graph, lengths or [1.0] * graph.ecount(), sources)
-    if sources is not None:  # scale sample sums up to all n-1 other nodes
-        factor = (n - 1) / len(sources)
+    if sources is not None:
+        # Scale each node's sample sums up to all n-1 other nodes; a sampled node is not its own
+        # source, so it saw one source fewer.
+        others = np.full(n, float(len(sources)))
+        others[sources] -= 1
+        factor = np.divide(n - 1, others, out=np.zeros(n), where=others > 0)
         reach, total, inverse = reach * factor, total * factor, inverse * factor
     with np.errstate(divide="ignore", invalid="ignore"):
         closeness = np.where(total > 0, (reach / (n - 1)) * (reach / total), 0.0) if n > 1 else np.zeros(n)
     columns["closeness"] = closeness.tolist()
     columns["harmonic"] = (inverse / (n - 1)).tolist() if n > 1 else [0.0] * n
 
-    if not directed or graph.is_connected(mode="strong"):
-        if graph.ecount() == 0:
-            omitted["eigenvector"] = "the network has no ties"
-        else:
-            # directed=True is ignored on undirected graphs; igraph 1.0 rejects False there.
+    why_not = _eigenvector_undefined(graph)
+    if why_not:
+        omitted["eigenvector"] = why_not
+    else:
+        # directed=True is ignored on undirected graphs (igraph 1.0 rejects False there); ARPACK
+        # starts from a random vector, so draw it from the study seed.
+        with seeded_igraph(seed), warnings.catch_warnings():
+            # Isolates beside one connected part score 0 by design; igraph warns about that.
+            warnings.filterwarnings("ignore", message="Some eigenvector centralities are nearly zero")
             columns["eigenvector"] = graph.eigenvector_centrality(directed=True, scale=True,
                                                                   weights=strengths)
-    else:
-        omitted["eigenvector"] = ("the network is directed and not strongly connected, so the "
-                                  "leading eigenvector is not unique and gives zero to nodes outside "
-                                  "the leading strong component; see PageRank instead")
     columns["pagerank"] = graph.pagerank(directed=directed, damping=0.85, weights=strengths)
 
     undirected = undirected_version(graph)

@@ -4,31 +4,48 @@ or a number, ties underneath, the five largest nodes named."""
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
+from matplotlib import colormaps, patheffects
 from matplotlib.axes import Axes
-from matplotlib.collections import LineCollection
+from matplotlib.collections import LineCollection, PolyCollection
 from matplotlib.colorbar import Colorbar
 from matplotlib.colors import Normalize
 from matplotlib.lines import Line2D
-from matplotlib.patches import FancyArrowPatch
-from matplotlib import colormaps, patheffects
 
 from ..analyse import NetworkAnalysis
 from .figure import Figure
+from .label_placement import NodeDisc, place_labels
 from .node_encoding import (LABELLED_NODES, NodeColours, NodeSizes, colour_nodes, size_nodes,
                             top_nodes)
-from .style import (MISSING_EDGE, MISSING_GREY, NODE_EDGE, QUIET_INK, TIE_GREY, drawing_style, figure_bytes,
-                    new_figure)
+from .style import (INK, MISSING_EDGE, MISSING_GREY, NODE_EDGE, PNG_DPI, QUIET_INK, TIE_GREY,
+                    drawing_style, figure_bytes, new_figure)
+from .tie_geometry import arrow_shapes, tie_widths
 from .wording import count_of, format_value, list_in_words, node_name
 
 __all__ = ["draw_map", "label_gid"]
 
-_MAP_SIZE = (9.0, 6.6)  # inches; the map takes the left 72%, the keys the rest
-_MAP_BOX = (0.0, 0.0, 0.72, 0.93)
-_KEY_BOX = (0.74, 0.02, 0.26, 0.9)
+# The frame, in inches: the map keeps the layout's proportions inside these bounds, the keys sit
+# in their own column to its right so they never cover a node.
+_MAP_MAX = (8.0, 6.0)
+_MAP_MIN_SIDE = 2.5
+_KEY_WIDTH = 2.6
+_KEY_MIN_HEIGHT = 4.8
+_TITLE_HEIGHT = 0.45
 _MAX_LABEL = 28  # characters of a node label shown on the map
-_ARROW_CURVE = 0.08  # directed ties bend slightly so a reciprocal pair shows as two lines
+_PAD_POINTS = 14.0  # room around the outermost nodes for their markers
+
+
+@dataclass(frozen=True)
+class _Frame:
+    width: float  # figure, inches
+    height: float
+    map_box: tuple[float, float, float, float]  # figure fractions
+    key_box: tuple[float, float, float, float]
+    xlim: tuple[float, float]
+    ylim: tuple[float, float]
+    points_per_unit: float
 
 
 def label_gid(vertex: int) -> str:
@@ -36,40 +53,62 @@ def label_gid(vertex: int) -> str:
     return f"node-label-{vertex}"
 
 
-def _tie_widths(analysis: NetworkAnalysis) -> np.ndarray:
-    m = len(analysis.edge_pairs)
-    base = 0.6 if m <= 1500 else 0.3
-    strengths = np.array(analysis.edge_strengths, dtype=float)
-    if not analysis.weighted or m == 0 or strengths.max() == strengths.min():
-        return np.full(m, base)
-    # Mild growth: the strongest tie is drawn about three times as wide as the weakest.
-    share = (strengths - strengths.min()) / (strengths.max() - strengths.min())
-    return base * (1.0 + 2.0 * share)
+def _frame(xy: np.ndarray) -> _Frame:
+    """Size the map to the layout's shape so it fills its box at one scale in x and y."""
+    low, high = (xy.min(axis=0), xy.max(axis=0)) if len(xy) else (np.zeros(2), np.ones(2))
+    span = np.maximum(high - low, 1e-9)
+    if span.max() <= 1e-9:
+        span = np.ones(2)
+    ratio = span[0] / span[1]
+    width = min(_MAP_MAX[0], _MAP_MAX[1] * ratio)
+    width = min(max(width, _MAP_MIN_SIDE), _MAP_MAX[0])
+    height = min(max(width / ratio, _MAP_MIN_SIDE), _MAP_MAX[1])
+    pad = _PAD_POINTS / 72.0  # inches
+    scale = min((width - 2 * pad) / span[0], (height - 2 * pad) / span[1])  # inches per unit
+    centre = (low + high) / 2
+    half_w, half_h = width / (2 * scale), height / (2 * scale)
+    fig_w = width + _KEY_WIDTH
+    body = max(height, _KEY_MIN_HEIGHT)
+    fig_h = body + _TITLE_HEIGHT
+    map_bottom = (body - height) / 2
+    return _Frame(
+        width=fig_w, height=fig_h,
+        map_box=(0.0, map_bottom / fig_h, width / fig_w, height / fig_h),
+        key_box=((width + 0.25) / fig_w, 0.05 / fig_h, (_KEY_WIDTH - 0.3) / fig_w,
+                 (body - 0.1) / fig_h),
+        xlim=(centre[0] - half_w, centre[0] + half_w),
+        ylim=(centre[1] - half_h, centre[1] + half_h),
+        points_per_unit=72.0 * scale,
+    )
 
 
-def _draw_ties(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: NodeSizes) -> None:
+def _radii_points(sizes: NodeSizes) -> np.ndarray:
+    # A scatter marker of area s points^2 is a circle of diameter sqrt(s) points.
+    return np.sqrt(np.array(sizes.areas, dtype=float)) / 2
+
+
+def _draw_ties(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: NodeSizes,
+               frame: _Frame) -> None:
     if not analysis.edge_pairs:
         return
-    widths = _tie_widths(analysis)
+    widths = tie_widths(analysis.edge_strengths, weighted=analysis.weighted)
     if not analysis.directed:
         segments = [(tuple(xy[a]), tuple(xy[b])) for a, b in analysis.edge_pairs]
         ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=widths, zorder=1,
-                                         capstyle="round"))
+                                         capstyle="round"), autolim=False)
         return
-    # Arrows stop at the rim of the target marker: marker area s (points^2) has diameter sqrt(s).
-    radius = [math.sqrt(a) / 2 for a in sizes.areas]
-    head = "-|>,head_length=0.55,head_width=0.25"
-    for (a, b), width in zip(analysis.edge_pairs, widths):
-        ax.add_patch(FancyArrowPatch(
-            tuple(xy[a]), tuple(xy[b]), arrowstyle=head, mutation_scale=7 + 2 * width,
-            connectionstyle=f"arc3,rad={_ARROW_CURVE}", shrinkA=radius[a], shrinkB=radius[b] + 0.5,
-            color=TIE_GREY, linewidth=width, zorder=1, joinstyle="miter"))
+    segments, heads, drawn = arrow_shapes(xy, analysis.edge_pairs, _radii_points(sizes), widths,
+                                          frame.points_per_unit)
+    ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=drawn or [0.6],
+                                     zorder=1, capstyle="butt"), autolim=False)
+    ax.add_collection(PolyCollection(heads, facecolors="#A8A8A8", edgecolors="none", zorder=1.5),
+                      autolim=False)
 
 
 def _draw_nodes(ax: Axes, xy: np.ndarray, colours: NodeColours, sizes: NodeSizes) -> None:
-    edges = [MISSING_EDGE if c == MISSING_GREY else NODE_EDGE for c in colours.colours]
+    rims = [MISSING_EDGE if c == MISSING_GREY else NODE_EDGE for c in colours.colours]
     ax.scatter(xy[:, 0], xy[:, 1], s=list(sizes.areas), c=list(colours.colours),
-               edgecolors=edges, linewidths=0.7, zorder=2)
+               edgecolors=rims, linewidths=0.7, zorder=2)
 
 
 def _short(label: str) -> str:
@@ -80,42 +119,49 @@ def _draw_labels(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: Nod
                  labelled: list[int]) -> None:
     labels = analysis.labels
     halo = [patheffects.withStroke(linewidth=3.0, foreground="white")]
+    texts = []
     for vertex in labelled:
-        lift = math.sqrt(sizes.areas[vertex]) / 2 + 1.5
-        text = ax.annotate(_short(labels[vertex]), xy=tuple(xy[vertex]), xytext=(0, lift),
-                           textcoords="offset points", ha="center", va="bottom", fontsize=8.5,
-                           fontweight="bold", zorder=4, path_effects=halo)
+        text = ax.annotate(_short(labels[vertex]), xy=tuple(xy[vertex]), xytext=(0, 0),
+                           textcoords="offset points", fontsize=8.5, fontweight="bold",
+                           color=INK, zorder=4, path_effects=halo)
         text.set_gid(label_gid(vertex))
-
-
-def _colour_key(key_ax: Axes, colours: NodeColours) -> float:
-    """Draw the colour key at the top of the key panel; return where the next key may start."""
-    if colours.scale is not None:
-        cax = key_ax.inset_axes((0.02, 0.56, 0.07, 0.36))
-        norm = Normalize(colours.scale.low, max(colours.scale.high, colours.scale.low + 1e-12))
-        bar = Colorbar(cax, cmap=colormaps[colours.scale.colormap], norm=norm)
-        bar.outline.set_linewidth(0.5)
-        cax.set_title(colours.attribute, loc="left", fontsize=9, fontweight="bold", pad=8)
-        cax.tick_params(labelsize=8, length=2)
-        top = 0.52
-        if not colours.groups:
-            return top
-        handles = [_dot(g.colour, MISSING_EDGE) for g in colours.groups]
-        key_ax.legend(handles, [f"{g.label} ({g.nodes})" for g in colours.groups], loc="upper left",
-                      bbox_to_anchor=(0.0, top), borderaxespad=0.0)
-        return top
-    handles = [_dot(g.colour, MISSING_EDGE if g.missing else NODE_EDGE) for g in colours.groups]
-    legend = key_ax.legend(handles, [f"{g.label} ({g.nodes})" for g in colours.groups],
-                           title=colours.attribute, loc="upper left", bbox_to_anchor=(0.0, 1.0),
-                           borderaxespad=0.0, alignment="left", handletextpad=0.4,
-                           labelspacing=0.45)
-    key_ax.add_artist(legend)
-    return 1.0
+        texts.append(text)
+    renderer = ax.figure.canvas.get_renderer()
+    pixels = ax.transData.transform(xy) if len(xy) else np.zeros((0, 2))
+    radii = _radii_points(sizes)
+    discs = [NodeDisc(float(x), float(y), float(r) * PNG_DPI / 72.0)
+             for (x, y), r in zip(pixels, radii)]
+    place_labels(ax, renderer, texts, labelled, radii, discs)
 
 
 def _dot(colour: str, rim: str, area: float = 60.0) -> Line2D:
     return Line2D([], [], linestyle="none", marker="o", markersize=math.sqrt(area),
                   markerfacecolor=colour, markeredgecolor=rim, markeredgewidth=0.7)
+
+
+def _legend_text(colours: NodeColours) -> list[str]:
+    return [f"{g.label} ({g.nodes})" for g in colours.groups]
+
+
+def _colour_key(key_ax: Axes, colours: NodeColours) -> None:
+    """The colour key at the top of the key column: a legend, or a colour bar for numbers."""
+    style = {"loc": "upper left", "borderaxespad": 0.0, "alignment": "left",
+             "handletextpad": 0.4, "labelspacing": 0.45}
+    handles = [_dot(g.colour, MISSING_EDGE if g.missing else NODE_EDGE) for g in colours.groups]
+    if colours.scale is None:
+        key_ax.add_artist(key_ax.legend(handles, _legend_text(colours), title=colours.attribute,
+                                        bbox_to_anchor=(0.0, 1.0), **style))
+        return
+    cax = key_ax.inset_axes((0.02, 0.6, 0.07, 0.33))
+    low, high = colours.scale.low, colours.scale.high
+    bar = Colorbar(cax, cmap=colormaps[colours.scale.colormap],
+                   norm=Normalize(low, high if high > low else low + 1.0))
+    bar.outline.set_linewidth(0.5)
+    cax.set_title(colours.attribute, loc="left", fontsize=9, fontweight="normal", pad=8)
+    cax.tick_params(labelsize=8, length=2)
+    if handles:
+        key_ax.add_artist(key_ax.legend(handles, _legend_text(colours),
+                                        bbox_to_anchor=(0.0, 0.56), **style))
 
 
 def _size_key(key_ax: Axes, sizes: NodeSizes) -> None:
@@ -124,21 +170,10 @@ def _size_key(key_ax: Axes, sizes: NodeSizes) -> None:
         return
     low, high = min(finite), max(finite)
     shown = [low] if high == low else [low, (low + high) / 2, high]
-    handles = [_dot("#BFBFBF", "#808080", sizes.area_for(v)) for v in shown]
+    handles = [_dot("#C8C8C8", "#7A7A7A", sizes.area_for(v)) for v in shown]
     key_ax.legend(handles, [format_value(v) for v in shown], title=sizes.measure,
-                  loc="lower left", bbox_to_anchor=(0.0, 0.0), borderaxespad=0.0,
+                  loc="lower left", bbox_to_anchor=(0.0, 0.05), borderaxespad=0.0,
                   alignment="left", labelspacing=1.1, borderpad=0.6, handletextpad=0.8)
-
-
-def _limits(ax: Axes, xy: np.ndarray) -> None:
-    if len(xy) == 0:
-        return
-    low, high = xy.min(axis=0), xy.max(axis=0)
-    pad = 0.05 * max(float((high - low).max()), 1e-9) + 0.02
-    ax.set_xlim(low[0] - pad, high[0] + pad)
-    ax.set_ylim(low[1] - pad, high[1] + pad * 1.6)  # a little more above, for the names
-    ax.set_aspect("equal", adjustable="box", anchor="C")
-    ax.set_axis_off()
 
 
 def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
@@ -151,8 +186,9 @@ def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
         kind.append("weighted, wider lines are stronger ties")
     kinds = f" ({'; '.join(kind)})" if kind else ""
     finite = [v for v in sizes.values if math.isfinite(v)]
-    size_range = (f" (from {format_value(min(finite))} to {format_value(max(finite))})"
-                  if finite else "")
+    size_range = ("" if not finite else f" (all {format_value(finite[0])})"
+                  if min(finite) == max(finite)
+                  else f" (from {format_value(min(finite))} to {format_value(max(finite))})")
     if colours.scale is not None:
         colour_text = (f"colour shows {colours.attribute} on a scale from "
                        f"{format_value(colours.scale.low)} (dark purple) to "
@@ -160,14 +196,17 @@ def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
         if colours.missing:
             colour_text += f", with {count_of(colours.missing, 'node')} in grey for no value"
     else:
-        parts = [f"{g.label}: {g.nodes}" for g in colours.groups]
+        prefix = "community " if colours.attribute == "community" else ""
+        parts = [f"{prefix if g.members == 1 and not g.missing else ''}{g.label}: "
+                 f"{count_of(g.nodes, 'node')}" for g in colours.groups]
         colour_text = (f"colour shows {colours.attribute}: "
                        f"{count_of(colours.categories, 'group')} ({list_in_words(parts)})")
     ids = list(analysis.measures.index)
     names = [node_name(analysis.labels[i], str(ids[i])) for i in labelled]
     return (f"Network map of {count_of(n, 'node')} and {count_of(m, 'tie')}{kinds}; node size "
             f"shows {sizes.measure}{size_range}; {colour_text}. Named on the map: the "
-            f"{len(labelled)} nodes with the highest {sizes.measure}: {list_in_words(names)}.")
+            f"{count_of(len(labelled), 'node')} with the highest {sizes.measure}: "
+            f"{list_in_words(names)}.")
 
 
 def _caption(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes) -> str:
@@ -185,21 +224,26 @@ def draw_map(analysis: NetworkAnalysis, colours: NodeColours | None = None) -> F
     sizes = size_nodes(analysis)
     xy = np.array(analysis.layout, dtype=float).reshape(-1, 2)
     labelled = top_nodes(sizes.values, LABELLED_NODES)
+    frame = _frame(xy)
     title = f"{analysis.title}: network map"
     with drawing_style():
-        fig = new_figure(*_MAP_SIZE)
-        ax = fig.add_axes(_MAP_BOX)
-        _limits(ax, xy)
-        _draw_ties(ax, analysis, xy, sizes)
+        fig = new_figure(frame.width, frame.height)
+        ax = fig.add_axes(frame.map_box)
+        ax.set_xlim(*frame.xlim)
+        ax.set_ylim(*frame.ylim)
+        ax.set_axis_off()
+        _draw_ties(ax, analysis, xy, sizes, frame)
         _draw_nodes(ax, xy, colours, sizes)
         _draw_labels(ax, analysis, xy, sizes, labelled)
-        ax.set_title(title, loc="left", pad=10)
-        key_ax = fig.add_axes(_KEY_BOX)
+        fig.text(0.01, 1 - 0.12 / frame.height, title, ha="left", va="top", fontsize=10.5,
+                 fontweight="bold")
+        key_ax = fig.add_axes(frame.key_box)
         key_ax.set_axis_off()
         _colour_key(key_ax, colours)
         _size_key(key_ax, sizes)
-        fig.text(0.74, 0.0, f"{len(xy)} nodes, {len(analysis.edge_pairs)} ties", fontsize=7.5,
-                 color=QUIET_INK, ha="left", va="top")
-        svg, png = figure_bytes(fig)
+        key_ax.text(0.0, 0.0, f"{count_of(len(xy), 'node')}, "
+                    f"{count_of(len(analysis.edge_pairs), 'tie')}", fontsize=7.5,
+                    color=QUIET_INK, ha="left", va="bottom", transform=key_ax.transAxes)
+        svg, png = figure_bytes(fig, crop=True)  # legend text length varies
     return Figure(name="map", title=title, alt=_alt(analysis, colours, sizes, labelled),
                   caption=_caption(analysis, colours, sizes), svg=svg, png=png)

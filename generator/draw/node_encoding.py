@@ -101,15 +101,23 @@ def _is_missing(value: object) -> bool:
     return value is None or value is pd.NA or (isinstance(value, float) and math.isnan(value))
 
 
+def _value_order(value: object) -> tuple:
+    # Numbers (community 2 before community 10) before text, text case-insensitively.
+    if isinstance(value, (int, float, np.integer, np.floating)):
+        return (0, float(value), "")
+    return (1, 0.0, str(value).casefold() + "\0" + str(value))
+
+
 def colour_groups(values: list[object]) -> tuple[list[str], list[ColourGroup]]:
-    """Categorical colours: groups ordered largest first (ties by value), the Okabe-Ito palette
-    for up to eight groups; beyond eight, the seven largest keep a colour and the rest share
-    one grey, so no two groups ever share a palette colour."""
+    """Categorical colours: groups ordered largest first (ties by value, so equal communities
+    keep their numbering), the Okabe-Ito palette for up to eight groups; beyond eight, the
+    seven largest keep a colour and the rest share one grey, so no two groups ever share a
+    palette colour."""
     counts: dict[object, int] = {}
     for value in values:
         if not _is_missing(value):
             counts[value] = counts.get(value, 0) + 1
-    ranked = sorted(counts, key=lambda v: (-counts[v], str(v).casefold(), str(v)))
+    ranked = sorted(counts, key=lambda v: (-counts[v], _value_order(v)))
     coloured = ranked if len(ranked) <= MAX_GROUP_COLOURS else ranked[:MAX_GROUP_COLOURS - 1]
     colour_of = {value: OKABE_ITO[i] for i, value in enumerate(coloured)}
     groups = [ColourGroup(str(v), colour_of[v], counts[v]) for v in coloured]
@@ -133,8 +141,9 @@ def colour_nodes(analysis: NetworkAnalysis) -> NodeColours:
     else:
         column = analysis.nodes[attribute]
         values = [None if pd.isna(v) else v for v in column]
-    if column is not None and pd.api.types.is_numeric_dtype(column) and \
-            not pd.api.types.is_bool_dtype(column):
+    numeric = (column is not None and pd.api.types.is_numeric_dtype(column)
+               and not pd.api.types.is_bool_dtype(column))
+    if numeric:
         return _numeric_colours(attribute, values)
     colours, groups = colour_groups(values)
     categories = len({v for v in values if not _is_missing(v)})
@@ -174,8 +183,8 @@ def _scale_areas(values: np.ndarray, reference: np.ndarray) -> np.ndarray:
 def size_nodes(analysis: NetworkAnalysis) -> NodeSizes:
     measure = size_measure(analysis)
     values = np.array(analysis.measures[measure], dtype=float)
-    return NodeSizes(measure, tuple(float(v) for v in values), tuple(float(a) for a in
-                                                                       _scale_areas(values, values)))
+    areas = _scale_areas(values, values)
+    return NodeSizes(measure, tuple(float(v) for v in values), tuple(float(a) for a in areas))
 
 
 def top_nodes(values: tuple[float, ...] | list[float], count: int = LABELLED_NODES) -> list[int]:

@@ -3,10 +3,12 @@
 from __future__ import annotations
 
 import io
+import textwrap
 from contextlib import contextmanager
 from typing import Iterator
 
 import matplotlib
+import matplotlib.style
 from matplotlib.axes import Axes
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure as CanvasFigure
@@ -25,8 +27,10 @@ __all__ = [
     "TIE_GREY",
     "drawing_style",
     "figure_bytes",
+    "new_chart",
     "new_figure",
     "quiet_axes",
+    "wrap_title",
 ]
 
 # Colour-blind-safe qualitative palette, in the authors' order, with black last:
@@ -44,6 +48,8 @@ INK = "#262626"
 QUIET_INK = "#6B6B6B"
 
 PNG_DPI = 150
+_PAD_INCHES = 0.12  # white margin kept around the drawing
+_TITLE_CHAR_INCHES = 0.095  # a generous average width of one bold title character
 # Perceptually uniform and still ordered when printed in grey (Smith & van der Walt: A Better
 # Default Colormap for Matplotlib. SciPy 2015 conference talk).
 SEQUENTIAL_COLORMAP = "viridis"
@@ -55,7 +61,8 @@ _RC = {
     "svg.hashsalt": "netfolio",
     "svg.fonttype": "none",
     "svg.image_inline": True,
-    "font.family": ["DejaVu Sans"],
+    "font.family": ["sans-serif"],
+    "font.sans-serif": ["DejaVu Sans"],  # SVG text then reads "'DejaVu Sans', sans-serif"
     "font.size": 9.0,
     "axes.titlesize": 10.5,
     "axes.titleweight": "bold",
@@ -81,8 +88,12 @@ _RC = {
 
 @contextmanager
 def drawing_style() -> Iterator[None]:
-    """Apply the house style for the duration of the block, leaving global rcParams untouched."""
-    with matplotlib.rc_context(_RC):
+    """Apply the house style for the duration of the block, leaving global rcParams untouched.
+
+    The style starts from matplotlib's defaults, not from the current settings, so a user's
+    matplotlibrc or a notebook's style cannot change the figures' bytes.
+    """
+    with matplotlib.style.context("default"), matplotlib.rc_context(_RC):
         yield
 
 
@@ -93,20 +104,54 @@ def new_figure(width: float, height: float) -> CanvasFigure:
     return figure
 
 
-def figure_bytes(figure: CanvasFigure) -> tuple[bytes, bytes]:
-    """The figure as (SVG, PNG) bytes, with no date or software stamp, then release it."""
+def figure_bytes(figure: CanvasFigure, *, crop: bool = False) -> tuple[bytes, bytes]:
+    """The figure as (SVG, PNG) bytes, with no date or software stamp, then release it.
+
+    ``crop`` trims both files to one box around everything drawn (measured once for both
+    formats); charts with a fixed layout skip it, as measuring costs nearly a full draw.
+    """
+    box = (figure.get_tightbbox(figure.canvas.get_renderer()).padded(_PAD_INCHES) if crop
+           else None)
     svg, png = io.BytesIO(), io.BytesIO()
-    options = {"bbox_inches": "tight", "pad_inches": 0.12}
-    figure.savefig(svg, format="svg", metadata={"Date": None, "Creator": None}, **options)
-    figure.savefig(png, format="png", dpi=PNG_DPI, metadata={"Software": None}, **options)
+    figure.savefig(svg, format="svg", bbox_inches=box, metadata={"Date": None, "Creator": None})
+    figure.savefig(png, format="png", bbox_inches=box, dpi=PNG_DPI, metadata={"Software": None})
     figure.clear()
     return svg.getvalue(), png.getvalue()
 
 
-def quiet_axes(ax: Axes) -> None:
-    """Left and bottom spines only, with a faint horizontal grid behind the data."""
+def wrap_title(text: str, width_inches: float) -> str:
+    """Break a long title over lines so a fixed-size figure never cuts it off."""
+    return textwrap.fill(text, width=max(20, int(width_inches / _TITLE_CHAR_INCHES)),
+                         break_long_words=True)
+
+
+def new_chart(width: float, plot_height: float, *, title: str, left: float = 0.8,
+              right: float = 0.3, bottom: float = 0.62, panels: int = 1, gap: float = 0.3
+              ) -> tuple[CanvasFigure, list[Axes]]:
+    """A chart with a fixed layout in inches: the title over ``panels`` side-by-side plots of
+    ``plot_height``, margins sized for tick labels and axis labels. Later panels share the
+    first one's y axis."""
+    lines = wrap_title(title, width - 0.2)
+    top = 0.25 + 0.2 * (lines.count("\n") + 1)
+    height = plot_height + top + bottom
+    figure = new_figure(width, height)
+    panel = (width - left - right - gap * (panels - 1)) / panels
+    axes: list[Axes] = []
+    for index in range(panels):
+        box = ((left + index * (panel + gap)) / width, bottom / height, panel / width,
+               plot_height / height)
+        axes.append(figure.add_axes(box, sharey=axes[0] if axes else None))
+        if index:
+            axes[-1].tick_params(labelleft=False)
+    figure.text(0.1 / width, 1 - 0.1 / height, lines, ha="left", va="top", fontsize=10.5,
+                fontweight="bold", color=INK)
+    return figure, axes
+
+
+def quiet_axes(ax: Axes, *, grid: str = "y") -> None:
+    """Left and bottom spines only, with faint grid lines across ``grid`` behind the data."""
     for side in ("top", "right"):
         ax.spines[side].set_visible(False)
     ax.set_axisbelow(True)
-    ax.grid(axis="y", color="#E6E6E6", linewidth=0.7)
+    ax.grid(axis=grid, color="#E6E6E6", linewidth=0.7)
     ax.tick_params(length=3, width=0.7)

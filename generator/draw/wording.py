@@ -5,12 +5,14 @@ from __future__ import annotations
 import math
 from typing import Sequence
 
+import numpy as np
+
 __all__ = ["count_of", "format_value", "list_in_words", "node_name"]
 
 
 def format_value(value: float) -> str:
     """A number as a reader would write it: whole numbers plainly, others to three significant
-    figures, never in exponent form unless the value is tiny."""
+    figures, never in exponent form."""
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "no value"
     number = float(value)
@@ -20,11 +22,9 @@ def format_value(value: float) -> str:
         return f"{int(number):,}"
     if abs(number) >= 1000:
         return f"{number:,.0f}"
-    if abs(number) < 0.001:
-        return f"{number:.2e}"
-    text = f"{number:.3g}"
-    return text if "e" not in text else f"{number:.4f}".rstrip("0").rstrip(".")
-
+    # Three significant figures, written out in full (0.000146, not 1.46e-04).
+    return np.format_float_positional(number, precision=3, unique=False, fractional=False,
+                                      trim="-")
 
 def list_in_words(items: Sequence[str], *, limit: int = 10) -> str:
     """``a, b and c``; beyond ``limit`` items, ``a, b, ... and 4 more``."""

@@ -11,7 +11,7 @@ import pandas as pd
 
 from ..config import NetworkConfig, StudyConfig
 from ..errors import DataError, Finding
-from .csvfile import Table, read_table
+from .csvfile import read_table
 
 __all__ = ["CleanNetwork", "DataChecks", "natural_key", "read_network"]
 
@@ -19,9 +19,13 @@ MAX_LINES_LISTED = 20  # a finding lists at most this many line numbers
 
 
 def natural_key(text: str) -> tuple:
-    """Sort "s2" before "s10": digits compare as numbers, the rest as text."""
-    return tuple((0, int(part), "") if part.isdigit() else (1, 0, part)
-                 for part in re.split(r"(\d+)", text) if part != "")
+    """Sort "s2" before "s10": digits compare as numbers, the rest as text.
+
+    The text itself breaks ties ("a1" and "a01"), so the order is total and the same in every
+    process."""
+    parts = tuple((0, int(part), "") if part.isdigit() else (1, 0, part)
+                  for part in re.split(r"(\d+)", text) if part != "")
+    return (parts, text)
 
 
 @dataclass
@@ -236,7 +240,7 @@ def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[lis
     ties = [
         _RawTie(src, dst, value, line_of[src])
         for (src, dst), value in values.items()
-        if value != 0 and (net.directed or natural_key(src) <= natural_key(dst))
+        if value != 0 and (net.directed or natural_key(src) <= natural_key(dst))  # one of each pair
     ]
     return ties, row_labels, weighted
 
@@ -323,8 +327,11 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
         node_frame = pd.DataFrame(index=pd.Index(all_ids, name="id"))
     node_frame = node_frame.reindex(pd.Index(all_ids, name="id"))
     attrs = _typed_attributes(node_frame)
-    labels = (attrs[net.label].astype("string") if net.label else pd.Series(pd.NA, index=attrs.index,
-                                                                           dtype="string"))
+    # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
+    if net.label:
+        labels = node_frame[net.label].astype("string").str.strip().replace("", pd.NA)
+    else:
+        labels = pd.Series(pd.NA, index=attrs.index, dtype="string")
     labels = labels.fillna(pd.Series(attrs.index, index=attrs.index, dtype="string"))
     attribute_names = tuple(c for c in attrs.columns if c != net.label)
     nodes = pd.concat([labels.rename("label"), attrs[list(attribute_names)]], axis=1)

@@ -1,0 +1,37 @@
+"""Figures of one analysed network, as SVG and PNG bytes; drawing computes no measures."""
+
+from __future__ import annotations
+
+import sys
+
+import matplotlib
+
+from ..analyse import NetworkAnalysis
+from .community_sizes import draw_communities
+from .distributions import CENTRALITY_MEASURES, draw_centrality, draw_degree
+from .figure import Figure
+from .network_map import draw_map
+from .node_encoding import colour_nodes
+
+__all__ = ["Figure", "draw_network"]
+
+
+def draw_network(analysis: NetworkAnalysis) -> list[Figure]:
+    """Every figure of one network, in page order: ``map``, ``degree``, one histogram per
+    centrality measure the analysis holds (betweenness, closeness, harmonic, eigenvector,
+    pagerank; a measure left out by the analysis is left out here), then ``communities``.
+
+    The same analysis gives byte-identical SVG and PNG in any process: figures live on their own
+    Agg canvases (no pyplot state), the style is applied in an ``rc_context``, the SVG hash salt
+    is fixed and no date or software stamp is written.
+    """
+    if "matplotlib.pyplot" not in sys.modules:
+        # No display is needed; choosing Agg up front keeps a later pyplot import headless.
+        # With pyplot already loaded (a notebook), its backend is left alone: we never use it.
+        matplotlib.use("Agg")
+    colours = colour_nodes(analysis)
+    figures = [draw_map(analysis, colours), draw_degree(analysis)]
+    figures += [draw_centrality(analysis, measure) for measure in CENTRALITY_MEASURES
+                if measure in analysis.measures.columns]
+    figures.append(draw_communities(analysis, colours))
+    return figures

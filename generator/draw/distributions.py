@@ -1,0 +1,153 @@
+"""How node measures are spread: the degree distribution and one histogram per centrality."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from matplotlib.axes import Axes
+from matplotlib.ticker import MaxNLocator
+
+from ..analyse import NetworkAnalysis
+from .figure import Figure
+from .style import BAR_COLOUR, INK, drawing_style, figure_bytes, new_chart, quiet_axes
+from .wording import count_of, format_value, node_name
+
+__all__ = ["CENTRALITY_MEASURES", "draw_centrality", "draw_degree"]
+
+CENTRALITY_MEASURES = ("betweenness", "closeness", "harmonic", "eigenvector", "pagerank")
+PATH_MEASURES = ("betweenness", "closeness", "harmonic")
+
+_DISPLAY_NAME = {
+    "betweenness": "betweenness",
+    "closeness": "closeness",
+    "harmonic": "harmonic closeness",
+    "eigenvector": "eigenvector centrality",
+    "pagerank": "PageRank",
+}
+# Axis labels and one plain-language sentence per measure, for readers new to the measures.
+_AXIS_LABEL = {
+    "betweenness": "betweenness (share of shortest paths through the node)",
+    "closeness": "closeness",
+    "harmonic": "harmonic closeness",
+    "eigenvector": "eigenvector centrality (highest node = 1)",
+    "pagerank": "PageRank (all nodes together = 1)",
+}
+_MEANING = {
+    "betweenness": "Betweenness is the share of shortest paths between other nodes that pass "
+                   "through a node; high values mark nodes that bridge parts of the network.",
+    "closeness": "Closeness is higher the shorter the paths between a node and the others.",
+    "harmonic": "Harmonic closeness averages one over the path length to every other node, so it "
+                "still works when some nodes cannot reach each other.",
+    "eigenvector": "Eigenvector centrality is high for nodes tied to other well-tied nodes.",
+    "pagerank": "PageRank is the share of time a random walk along the ties spends at a node.",
+}
+
+
+def _degree_panel(ax: Axes, values: np.ndarray, measure: str) -> None:
+    top = int(values.max()) if values.size else 0
+    counts = np.bincount(values.astype(int), minlength=top + 1) if values.size else np.zeros(1)
+    ax.bar(np.arange(top + 1), counts, width=0.8, color=BAR_COLOUR, linewidth=0)
+    ax.set_xlabel(measure.replace("_", "-"))
+    ax.xaxis.set_major_locator(MaxNLocator(integer=True))
+    ax.yaxis.set_major_locator(MaxNLocator(integer=True))
+    ax.set_xlim(-0.7, top + 0.7)
+    quiet_axes(ax)
+
+
+def _degree_words(values: np.ndarray, measure: str) -> str:
+    name = measure.replace("_", "-")
+    counts = np.bincount(values.astype(int))
+    common = int(counts.argmax())  # ties go to the smaller value
+    return (f"{name} ranges from {int(values.min())} to {int(values.max())} (median "
+            f"{format_value(float(np.median(values)))}; most common {common}, "
+            f"{count_of(int(counts[common]), 'node')})")
+
+
+def draw_degree(analysis: NetworkAnalysis) -> Figure:
+    """Bar chart of how many nodes have each degree; in- and out-degree side by side when the
+    network is directed."""
+    panels = ["in_degree", "out_degree"] if analysis.directed else ["degree"]
+    n = len(analysis.measures)
+    title = f"{analysis.title}: degree distribution"
+    with drawing_style():
+        fig, axes = new_chart(3.6 * len(panels) + 1.2, 2.9, title=title, panels=len(panels))
+        for ax, measure in zip(axes, panels):
+            _degree_panel(ax, np.array(analysis.measures[measure], dtype=float), measure)
+        axes[0].set_ylabel("number of nodes")
+        svg, png = figure_bytes(fig)
+    words = [_degree_words(np.array(analysis.measures[m], dtype=float), m) for m in panels]
+    isolated = int((np.array(analysis.measures["degree"]) == 0).sum())
+    alone = f"; {count_of(isolated, 'node')} with no ties at all" if isolated else ""
+    if analysis.directed:
+        alt = (f"Two bar charts of the {count_of(n, 'node')}: {words[0]}; {words[1]}{alone}.")
+        caption = ("In-degree counts the ties a node receives and out-degree the ties it sends; "
+                   "each bar shows how many nodes have that many.")
+    else:
+        alt = f"Bar chart of the degree of {count_of(n, 'node')}: {words[0]}{alone}."
+        caption = ("Degree is the number of ties a node has; each bar shows how many nodes have "
+                   "that many.")
+    return Figure(name="degree", title=title, alt=alt, caption=caption, svg=svg, png=png)
+
+
+def _bins(n: int) -> int:
+    # Rice's rule, 2 n^(1/3), held between 10 and 40 bars.
+    return int(min(40, max(10, round(2 * n ** (1 / 3)))))
+
+
+def draw_centrality(analysis: NetworkAnalysis, measure: str) -> Figure:
+    """Histogram of one centrality measure, with its median marked."""
+    values = np.array(analysis.measures[measure], dtype=float)
+    finite = values[np.isfinite(values)]
+    n = len(values)
+    high = float(finite.max()) if finite.size else 0.0
+    low = min(0.0, float(finite.min())) if finite.size else 0.0
+    median = float(np.median(finite)) if finite.size else math.nan
+    title = f"{analysis.title}: distribution of {_DISPLAY_NAME[measure]}"
+    with drawing_style():
+        fig, (ax,) = new_chart(6.4, 2.9, title=title)
+        span = (low, high if high > low else low + 1.0)
+        counts, _, _ = ax.hist(finite, bins=_bins(n), range=span, color=BAR_COLOUR,
+                               edgecolor="white", linewidth=0.6)
+        ax.set_ylim(0, max(float(counts.max()), 1.0) * 1.15)  # headroom for the key
+        if finite.size:
+            ax.axvline(median, color=INK, linestyle=(0, (4, 3)), linewidth=1.0,
+                       label=f"median {format_value(median)}")
+            ax.legend(loc="best")
+        ax.set_xlabel(_AXIS_LABEL[measure])
+        ax.set_ylabel("number of nodes")
+        ax.yaxis.set_major_locator(MaxNLocator(integer=True))
+        quiet_axes(ax)
+        svg, png = figure_bytes(fig)
+    return Figure(name=measure, title=title, alt=_centrality_alt(analysis, measure, values),
+                  caption=_centrality_caption(analysis, measure), svg=svg, png=png)
+
+
+def _centrality_alt(analysis: NetworkAnalysis, measure: str, values: np.ndarray) -> str:
+    finite = np.isfinite(values)
+    if not finite.any():
+        return (f"Histogram of {_DISPLAY_NAME[measure]} for {count_of(len(values), 'node')}: "
+                f"no values.")
+    top = int(np.argmax(np.where(finite, values, -np.inf)))  # first node with the maximum
+    ids = list(analysis.measures.index)
+    kept = values[finite]
+    q50, q75 = (float(np.quantile(kept, q)) for q in (0.5, 0.75))
+    low, high = format_value(float(kept.min())), format_value(float(kept.max()))
+    leader = node_name(analysis.labels[top], str(ids[top]))
+    return (f"Histogram of {_DISPLAY_NAME[measure]} for {count_of(len(values), 'node')}: values "
+            f"range from {low} to {high}; half the nodes score at most {format_value(q50)} and "
+            f"three in four at most {format_value(q75)}; the highest is {leader} with "
+            f"{format_value(float(values[top]))}.")
+
+
+def _centrality_caption(analysis: NetworkAnalysis, measure: str) -> str:
+    text = (_MEANING[measure] + " Each bar counts the nodes in its range; the dashed line marks "
+            "the median.")
+    if analysis.weighted and measure in ("closeness", "harmonic"):
+        reading = "1/weight" if analysis.weight_means == "strength" else "the weight"
+        text += (f" Path lengths here are {reading} per tie, so values above 1 are possible and "
+                 f"only comparisons between nodes carry meaning.")
+    if analysis.sampling is not None and measure in PATH_MEASURES:
+        text += (f" Values are estimated from {analysis.sampling.sources} sampled starting nodes "
+                 f"of {analysis.sampling.nodes}.")
+    return text

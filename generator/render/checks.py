@@ -1,0 +1,88 @@
+"""The data-checks page context: every fix and note found while reading each network."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+from ..errors import Finding
+from .display import MISSING
+from .inputs import NetworkPageInput
+from .site_map import PageFrame, network_page
+
+__all__ = ["LEVEL_TITLES", "FindingGroup", "FindingRow", "NetworkChecks", "checks_context",
+           "finding_groups"]
+
+# In the order shown. Errors stop a build, so a built site normally shows only fixes and notes.
+LEVEL_TITLES = {"error": "Errors", "fix": "Fixes applied", "note": "Notes"}
+_NONE_FOUND = {"fix": "No fixes were needed.", "note": "Nothing else to note."}
+
+
+@dataclass(frozen=True)
+class FindingRow:
+    file: str
+    line: str
+    column: str
+    value: str
+    count: str
+    message: str
+
+
+@dataclass(frozen=True)
+class FindingGroup:
+    level: str
+    title: str
+    rows: tuple[FindingRow, ...]
+    none_found: str  # said instead of an empty table
+
+
+@dataclass(frozen=True)
+class NetworkChecks:
+    id: str
+    title: str
+    anchor: str
+    page_href: str
+    rules: tuple[str, ...]
+    groups: tuple[FindingGroup, ...]
+
+
+def _row(finding: Finding) -> FindingRow:
+    return FindingRow(
+        file=finding.file,
+        line=MISSING if finding.line is None else str(finding.line),
+        column=MISSING if finding.column is None else finding.column,
+        value=MISSING if finding.value is None else finding.value,
+        count=str(finding.count),
+        message=finding.message,
+    )
+
+
+def finding_groups(findings: tuple[Finding, ...] | list[Finding]) -> tuple[FindingGroup, ...]:
+    """Findings grouped by level; fixes and notes always appear, errors only when present."""
+    groups = []
+    for level, title in LEVEL_TITLES.items():
+        rows = tuple(_row(f) for f in findings if f.level == level)
+        if rows or level in _NONE_FOUND:
+            groups.append(FindingGroup(level, title, rows, _NONE_FOUND.get(level, "")))
+    return tuple(groups)
+
+
+def _rules(item: NetworkPageInput) -> tuple[str, ...]:
+    config, analysis = item.config, item.analysis
+    how = f", weights combined by {config.duplicates}" if analysis.weighted else ""
+    return (
+        f"Repeated ties between the same pair are merged into one tie{how}.",
+        "Self-loops (ties from a node to itself) are removed.",
+        "Lines count as in a text editor: the header is line 1.",
+    )
+
+
+def checks_context(frame: PageFrame, networks: list[NetworkPageInput]) -> dict[str, Any]:
+    return {
+        "page": frame,
+        "networks": tuple(NetworkChecks(
+            id=item.id, title=item.title, anchor=f"network-{item.id}",
+            page_href=frame.href(network_page(item.id)), rules=_rules(item),
+            groups=finding_groups(item.analysis.findings),
+        ) for item in networks),
+    }

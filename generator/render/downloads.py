@@ -1,0 +1,133 @@
+"""The downloads page context: every file publish writes, with what it holds."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+from ..analyse import MEASURE_INFO
+from .describe import PATH_MEASURES, measure_title, weight_reading
+from .inputs import NetworkPageInput
+from .site_map import DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
+
+__all__ = ["ColumnInfo", "DownloadFile", "FigureDownload", "NetworkDownloads",
+           "downloads_context", "network_downloads", "node_columns_described"]
+
+
+@dataclass(frozen=True)
+class ColumnInfo:
+    name: str
+    meaning: str
+
+
+@dataclass(frozen=True)
+class DownloadFile:
+    path: str  # relative to the site root, as written on the page
+    href: str
+    description: str
+    columns: tuple[ColumnInfo, ...] = ()
+
+
+@dataclass(frozen=True)
+class FigureDownload:
+    title: str
+    svg_path: str
+    svg_href: str
+    png_path: str
+    png_href: str
+
+
+@dataclass(frozen=True)
+class NetworkDownloads:
+    id: str
+    title: str
+    anchor: str
+    files: tuple[DownloadFile, ...]
+    figures: tuple[FigureDownload, ...]
+
+
+def node_columns_described(item: NetworkPageInput, nodes_file: str | None) -> tuple[ColumnInfo, ...]:
+    """The columns of ``files/<id>/nodes.csv`` in order, each with its meaning."""
+    config, analysis = item.config, item.analysis
+    columns = [ColumnInfo("id", "node id as written in the data")]
+    columns.append(ColumnInfo("label", f"display name, from the node-list column '{config.label}'"
+                              if config.label else "display name (the id: no label column is set)"))
+    source = f"from {nodes_file}" if nodes_file else "from the node list"
+    columns += [ColumnInfo(a, f"node attribute {source}; empty when missing")
+                for a in analysis.attributes]
+    for column in analysis.measures.columns:
+        if column == "community":
+            columns.append(ColumnInfo(column, "community number (1 = the largest community)"))
+            continue
+        info = MEASURE_INFO.get(column)
+        meaning = measure_title(column)
+        if info is not None:
+            meaning += f" ({weight_reading(info.reads, analysis)})"
+        if analysis.sampling is not None and column in PATH_MEASURES:
+            meaning += (f"; estimated from {analysis.sampling.sources:,} sampled source nodes of "
+                        f"{analysis.sampling.nodes:,}")
+        columns.append(ColumnInfo(column, meaning))
+    return tuple(columns)
+
+
+def _edge_columns(item: NetworkPageInput) -> tuple[ColumnInfo, ...]:
+    config, analysis = item.config, item.analysis
+    if analysis.directed:
+        ends = [ColumnInfo("source", "id of the node the tie comes from"),
+                ColumnInfo("target", "id of the node the tie goes to")]
+    else:
+        ends = [ColumnInfo("source", "id of one end of the tie (the first in node order)"),
+                ColumnInfo("target", "id of the other end")]
+    if analysis.weighted:
+        meaning = "strength" if analysis.weight_means == "strength" else "distance"
+        ends.append(ColumnInfo("weight", f"tie weight as written in the data, read as a {meaning}; "
+                               f"repeated ties combined by {config.duplicates}"))
+    return tuple(ends)
+
+
+def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str | None
+                      ) -> NetworkDownloads:
+    def entry(name: str, description: str, columns: tuple[ColumnInfo, ...] = ()) -> DownloadFile:
+        path = network_file(item.id, name)
+        return DownloadFile(path, frame.href(path), description, columns)
+
+    files = (
+        entry("nodes.csv", "One row per node: id, label, node attributes, then every measure at "
+              "full precision.", node_columns_described(item, nodes_file)),
+        entry("edges.csv", "The cleaned tie list used for the analysis (repeats merged, self-loops "
+              "removed).", _edge_columns(item)),
+        entry("statistics.csv", "The network-level statistics at full precision.", (
+            ColumnInfo("statistic", "the statistic's name (such as density or "
+                       "assortativity:<attribute>), defined on the Methods page"),
+            ColumnInfo("value", "its value; empty when the statistic is not defined for this "
+                       "network (the network page says why)"))),
+        entry("network.graphml", "The network as GraphML (an open XML format most network tools "
+              "read), with node attributes and measures as node data and the weight on each tie."),
+    )
+    figures = tuple(FigureDownload(
+        title=f.title,
+        svg_path=figure_file(item.id, f.name, "svg"),
+        svg_href=frame.href(figure_file(item.id, f.name, "svg")),
+        png_path=figure_file(item.id, f.name, "png"),
+        png_href=frame.href(figure_file(item.id, f.name, "png")),
+    ) for f in item.figures)
+    return NetworkDownloads(item.id, item.title, f"network-{item.id}", files, figures)
+
+
+def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
+                      node_files: dict[str, str]) -> dict[str, Any]:
+    """``node_files`` maps a network id to its node list as the user wrote the path."""
+    return {
+        "page": frame,
+        "networks": tuple(network_downloads(item, frame, node_files.get(item.id))
+                          for item in networks),
+        "site_files": (
+            DownloadFile(DATAPACKAGE, frame.href(DATAPACKAGE),
+                         "Frictionless Data Package descriptor (an open standard): every CSV file "
+                         "above with its columns and their types, so other tools can check and "
+                         "load the tables."),
+            DownloadFile(MANIFEST, frame.href(MANIFEST),
+                         "Every file of this site with its size in bytes and SHA-256 checksum, to "
+                         "confirm a copy is complete and unchanged."),
+        ),
+    }

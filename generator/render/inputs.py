@@ -1,0 +1,28 @@
+"""What the build hands the render stage for one network."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..analyse import NetworkAnalysis
+from ..config import NetworkConfig
+from ..draw.figure import Figure
+
+__all__ = ["NetworkPageInput"]
+
+
+@dataclass(frozen=True)
+class NetworkPageInput:
+    """One network's settings, analysis results and figures, ready to be written as pages."""
+
+    config: NetworkConfig
+    analysis: NetworkAnalysis
+    figures: list[Figure]
+
+    @property
+    def id(self) -> str:
+        return self.config.id
+
+    @property
+    def title(self) -> str:
+        return self.config.title

@@ -1,0 +1,255 @@
+"""The methods page context, written from what actually ran for each network."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Iterable
+from urllib.parse import quote
+
+from ..analyse import COMMUNITY_REFERENCES, MEASURE_INFO, STATISTIC_INFO, Reference
+from .describe import (COMMUNITY_METHOD_TITLES, a_network, measure_title, weight_reading,
+                       weights_sentence)
+from .display import significant
+from .inputs import NetworkPageInput
+from .network_page import sampling_sentence
+from .site_map import CHECKS, PageFrame, network_page
+
+__all__ = [
+    "Citation", "MeasureMethod", "NetworkMethods", "ReferenceEntry", "StatisticMethod",
+    "methods_context", "network_methods", "reference_entries",
+]
+
+_STABILITY_REFERENCES = ("hubert1985", "danon2005")
+_WEIGHT_REFERENCES = ("opsahl2010", "newman2001")
+_LAYOUT_REFERENCES = ("fruchterman1991",)
+_SAMPLING_REFERENCES = ("brandes2007",)
+_COMMUNITY_DEFINITION = ("Number of the node's community in the partition described below: 1 is "
+                         "the largest community; equal sizes are ordered by their first member.")
+
+
+@dataclass(frozen=True)
+class Citation:
+    number: int
+    href: str  # "#ref-<key>"
+
+
+@dataclass(frozen=True)
+class ReferenceEntry:
+    number: int
+    anchor: str
+    text: str
+    doi: str | None
+    doi_href: str | None  # None when DOIs are shown as plain text
+
+
+@dataclass(frozen=True)
+class MeasureMethod:
+    column: str
+    title: str
+    definition: str
+    weights: str
+    citations: tuple[Citation, ...]
+
+
+@dataclass(frozen=True)
+class StatisticMethod:
+    title: str
+    names: tuple[str, ...]  # statistic rows it covers, e.g. assortativity:clinic
+    definition: str
+    citations: tuple[Citation, ...]
+
+
+@dataclass(frozen=True)
+class NetworkMethods:
+    id: str
+    title: str
+    anchor: str
+    page_href: str
+    checks_href: str
+    kind: str  # "A directed, weighted network"
+    cleaning: tuple[str, ...]
+    weights: str
+    weight_citations: tuple[Citation, ...]
+    measures: tuple[MeasureMethod, ...]
+    omitted: tuple[tuple[str, str], ...]
+    sampling: str | None
+    sampling_citations: tuple[Citation, ...]
+    statistics: tuple[StatisticMethod, ...]
+    community_parameters: tuple[tuple[str, str], ...]
+    communities: tuple[str, ...]
+    community_citations: tuple[Citation, ...]
+    stability: str
+    stability_citations: tuple[Citation, ...]
+    layout: str
+    layout_citations: tuple[Citation, ...]
+    seed: int
+    versions: tuple[tuple[str, str], ...]
+
+
+class _Citations:
+    """Numbers references in first-use order over the whole site."""
+
+    def __init__(self, references: Iterable[Reference]):
+        self.order: dict[str, Reference] = {}
+        for ref in references:
+            self.order.setdefault(ref.key, ref)
+        self.numbers = {key: i for i, key in enumerate(self.order, start=1)}
+
+    def cite(self, keys: Iterable[str]) -> tuple[Citation, ...]:
+        known = sorted((k for k in dict.fromkeys(keys) if k in self.numbers), key=self.numbers.get)
+        return tuple(Citation(self.numbers[k], f"#ref-{k}") for k in known)
+
+
+def reference_entries(references: Iterable[Reference], *, link_dois: bool = True
+                      ) -> tuple[ReferenceEntry, ...]:
+    unique: dict[str, Reference] = {}
+    for ref in references:
+        unique.setdefault(ref.key, ref)
+    return tuple(ReferenceEntry(
+        number=i, anchor=f"ref-{ref.key}", text=ref.text, doi=ref.doi,
+        doi_href=f"https://doi.org/{quote(ref.doi, safe='/()-._;:')}" if ref.doi and link_dois else None,
+    ) for i, ref in enumerate(unique.values(), start=1))
+
+
+def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ...]:
+    config, analysis = item.config, item.analysis
+    data = relative.get("data", "")
+    if config.matrix is not None:
+        read = (f"Ties were read from the adjacency matrix {data} (rows send, columns receive; a "
+                "cell is the tie's weight, an empty cell or 0 means no tie).")
+    else:
+        read = (f"Ties were read from the edge list {data} (columns '{config.source}' and "
+                f"'{config.target}'" + (f", weight '{config.weight}'" if config.weight else "") + ").")
+    if "nodes" in relative:
+        read += (f" Node attributes came from {relative['nodes']} (id column '{config.node_id}'"
+                 + (f", label column '{config.label}'" if config.label else "") + ").")
+        nodes = ("Nodes of the node list with no ties were kept as isolates; nodes named in ties "
+                 "but missing from the node list were added without attributes.")
+    else:
+        nodes = "The nodes are the ids named in the ties; there is no node list."
+    direction = ("in the same direction" if analysis.directed
+                 else "in either direction, as the network is undirected")
+    combine = (f", their weights combined by {config.duplicates}" if analysis.weighted else "")
+    sentences = [
+        read,
+        f"Repeated ties between the same pair ({direction}) were merged into one tie{combine}.",
+        "Self-loops (ties from a node to itself) were removed.",
+        f"{nodes} Results do not depend on the order of rows in the files.",
+    ]
+    if analysis.directed:
+        sentences.append("Measures computed on the undirected version turn each directed tie into "
+                         "an undirected one, merging reciprocal pairs with their strengths summed.")
+    return tuple(sentences)
+
+
+def _statistic_methods(item: NetworkPageInput, cite: _Citations) -> tuple[StatisticMethod, ...]:
+    grouped: dict[str, list[str]] = {}
+    for stat in item.analysis.statistics:
+        base = stat.name if stat.name in STATISTIC_INFO else stat.name.split(":")[0]
+        grouped.setdefault(base, []).append(stat.name)
+    methods = []
+    for base, names in grouped.items():
+        info = STATISTIC_INFO.get(base)
+        if info is None:
+            continue
+        title = info.title
+        attributes = [n.split(":", 1)[1] for n in names if ":" in n]
+        if attributes:
+            title = f"{title} ({', '.join(attributes)})"
+        methods.append(StatisticMethod(title, tuple(names), info.definition, cite.cite(info.references)))
+    return tuple(methods)
+
+
+def _runs(runs: int) -> str:
+    return "One run" if runs == 1 else f"{runs} independent runs"
+
+
+def _community_text(item: NetworkPageInput) -> tuple[tuple[tuple[str, str], ...], tuple[str, ...]]:
+    result, analysis = item.analysis.communities, item.analysis
+    method = COMMUNITY_METHOD_TITLES.get(result.method, result.method)
+    resolution = significant(result.resolution)
+    parameters = (("Method", method), ("Resolution", resolution), ("Runs", str(result.runs)),
+                  ("Seed", str(result.seed)))
+    on = "with tie strengths as weights" if analysis.weighted else "unweighted"
+    if result.method == "label-propagation":
+        how = (f"{method} on the undirected version, {on}. Label propagation has no resolution "
+               f"parameter; the resolution ({resolution}) only scores the runs when the best is "
+               "chosen.")
+    else:
+        how = (f"{method} optimising modularity at resolution {resolution} on the undirected "
+               f"version, {on}.")
+    return parameters, (
+        how,
+        f"{_runs(result.runs)}, each with its own seed derived from the study seed "
+        f"{result.seed}; the partition with the highest modularity at that resolution was kept and "
+        "its communities numbered 1, 2, ... by size, largest first (equal sizes ordered by their "
+        "first member).",
+        "The modularity shown on the network page is the standard Newman-Girvan modularity "
+        "(resolution 1) of the kept partition.",
+    )
+
+
+def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
+                    relative: dict[str, str]) -> NetworkMethods:
+    """``relative`` maps "data" (and "nodes" when there is a node list) to paths as the user wrote them."""
+    analysis = item.analysis
+    measures = []
+    for column in analysis.measures.columns:
+        info = MEASURE_INFO.get(column)
+        if info is None:
+            measures.append(MeasureMethod(column, measure_title(column), _COMMUNITY_DEFINITION
+                                          if column == "community" else "", "see Communities",
+                                          cite.cite(COMMUNITY_REFERENCES.get(
+                                              analysis.communities.method, ()))))
+            continue
+        measures.append(MeasureMethod(column, info.title, info.definition,
+                                      weight_reading(info.reads, analysis), cite.cite(info.references)))
+    parameters, community_sentences = _community_text(item)
+    pull = ", stronger ties pulling harder" if analysis.weighted else ""
+    return NetworkMethods(
+        id=item.id,
+        title=item.title,
+        anchor=f"network-{item.id}",
+        page_href=frame.href(network_page(item.id)),
+        checks_href=frame.href(f"{CHECKS}#network-{item.id}"),
+        kind=a_network(analysis),
+        cleaning=_cleaning(item, relative),
+        weights=weights_sentence(item.config, analysis),
+        weight_citations=cite.cite(_WEIGHT_REFERENCES) if analysis.weighted else (),
+        measures=tuple(measures),
+        omitted=tuple((measure_title(name), reason) for name, reason in analysis.omitted.items()),
+        sampling=sampling_sentence(analysis),
+        sampling_citations=cite.cite(_SAMPLING_REFERENCES) if analysis.sampling else (),
+        statistics=_statistic_methods(item, cite),
+        community_parameters=parameters,
+        communities=community_sentences,
+        community_citations=cite.cite(COMMUNITY_REFERENCES.get(analysis.communities.method, ())),
+        stability=("Agreement between the kept partition and each run is measured by the adjusted "
+                   "Rand index and by normalised mutual information, averaged over the runs: 1 "
+                   "means every run found the same communities, values near 0 no more agreement "
+                   "than chance. The share of runs that found exactly the kept partition is "
+                   "reported too."),
+        stability_citations=cite.cite(_STABILITY_REFERENCES),
+        layout=(f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
+                f"undirected version{pull}, started from positions drawn with the study seed "
+                f"{analysis.seed} and scaled into a square, so the same data give the same picture. "
+                "Distances in a drawing are not path lengths: read who is tied to whom, not how far "
+                "apart nodes are drawn."),
+        layout_citations=cite.cite(_LAYOUT_REFERENCES),
+        seed=analysis.seed,
+        versions=tuple(analysis.versions.items()),
+    )
+
+
+def methods_context(frame: PageFrame, networks: list[NetworkPageInput],
+                    relative_paths: dict[str, dict[str, str]], *, link_dois: bool = True
+                    ) -> dict[str, Any]:
+    """``relative_paths`` maps a network id to its input files as the user wrote them."""
+    references = [ref for item in networks for ref in item.analysis.references]
+    cite = _Citations(references)
+    return {
+        "page": frame,
+        "networks": tuple(network_methods(item, frame, cite, relative_paths.get(item.id, {}))
+                          for item in networks),
+        "references": reference_entries(references, link_dois=link_dois),
+    }

@@ -1,0 +1,80 @@
+"""The page context of one network's node table: every node, every attribute and measure."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import pandas as pd
+
+from .describe import measure_title
+from .display import shown, sort_key
+from .inputs import NetworkPageInput
+from .network_page import sampling_sentence
+from .site_map import DOWNLOADS, PageFrame, network_file, network_page
+
+__all__ = ["Cell", "Column", "NodeRow", "node_columns", "node_rows", "nodes_context"]
+
+
+@dataclass(frozen=True)
+class Column:
+    key: str  # the column's name in nodes.csv
+    title: str
+    numeric: bool  # sorts as numbers
+
+
+@dataclass(frozen=True)
+class Cell:
+    text: str  # rounded for reading
+    value: str  # exact, for sorting ("" when missing)
+    numeric: bool
+
+
+@dataclass(frozen=True)
+class NodeRow:
+    id: str
+    cells: tuple[Cell, ...]  # every column after the id, in column order
+
+
+def _table(item: NetworkPageInput) -> pd.DataFrame:
+    """The columns of nodes.csv after the id, in its order: label, attributes, measures."""
+    analysis = item.analysis
+    nodes = analysis.nodes[["label", *analysis.attributes]]
+    measures = analysis.measures.reindex(nodes.index)
+    return pd.concat([nodes, measures], axis=1)
+
+
+def node_columns(item: NetworkPageInput) -> tuple[Column, ...]:
+    analysis = item.analysis
+    columns = [Column("id", "Id", False), Column("label", "Label", False)]
+    columns += [Column(a, a, bool(pd.api.types.is_numeric_dtype(analysis.nodes[a].dtype)))
+                for a in analysis.attributes]
+    columns += [Column(m, measure_title(m), True) for m in analysis.measures.columns]
+    return tuple(columns)
+
+
+def node_rows(item: NetworkPageInput) -> tuple[NodeRow, ...]:
+    table = _table(item)
+    numeric = [c.numeric for c in node_columns(item)[1:]]
+    columns = [table.iloc[:, i].tolist() for i in range(table.shape[1])]
+    rows = []
+    for position, node in enumerate(table.index):
+        values = [column[position] for column in columns]
+        rows.append(NodeRow(str(node), tuple(Cell(shown(v), sort_key(v), is_number)
+                                             for v, is_number in zip(values, numeric))))
+    return tuple(rows)
+
+
+def nodes_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
+    return {
+        "page": frame,
+        "network_title": item.title,
+        "columns": node_columns(item),
+        "rows": node_rows(item),
+        "sampling": sampling_sentence(item.analysis),
+        "links": {
+            "network": frame.href(network_page(item.id)),
+            "nodes_csv": frame.href(network_file(item.id, "nodes.csv")),
+            "columns": frame.href(f"{DOWNLOADS}#network-{item.id}"),
+        },
+    }

@@ -1,0 +1,100 @@
+"""Render every page of the site and collect the theme's static files."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from markupsafe import Markup
+
+from ..config import StudyConfig
+from .checks import checks_context
+from .downloads import downloads_context
+from .inputs import NetworkPageInput
+from .methods import methods_context
+from .network_page import network_context
+from .nodes_page import nodes_context
+from .notes import RenderedNote, render_markdown
+from .overview import overview_context
+from .site_map import (CHECKS, DOWNLOADS, INDEX, METHODS, SiteMap, network_page, nodes_page,
+                       note_page, page_href)
+from .theme import load_theme
+
+__all__ = ["render_site"]
+
+TABLE_SCRIPT = "static/table.js"
+
+
+def _stem_title(stem: str) -> str:
+    words = stem.replace("-", " ").replace("_", " ").strip()
+    return words[:1].upper() + words[1:] if words else stem
+
+
+def _note_linker(page: str, stems: set[str]):
+    def href(stem: str) -> str | None:
+        return page_href(page, note_page(stem)) if stem in stems else None
+    return href
+
+
+def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
+                summary: str | None, build_info: dict[str, str],
+                link_dois: bool = True) -> dict[str, bytes]:
+    """Every page and static file of the site as {relative posix path: bytes}.
+
+    ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
+    ``build_info`` holds "netfolio" (the version) and "built" (a date, or "" for none).
+    ``link_dois`` makes each reference's DOI a link to https://doi.org/ (the only external
+    address the site contains); without it DOIs are plain text.
+    Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
+    """
+    theme = load_theme(study)
+    allow_html = study.site.allow_html
+    stems = set(notes)
+    rendered: dict[str, RenderedNote] = {
+        stem: render_markdown(notes[stem], allow_html=allow_html,
+                              note_href=_note_linker(note_page(stem), stems))
+        for stem in sorted(notes)
+    }
+    site = SiteMap(
+        study_title=study.title,
+        networks=[(item.id, item.title) for item in networks],
+        notes=[(stem, note.title or _stem_title(stem)) for stem, note in rendered.items()],
+        version=build_info.get("netfolio", ""),
+    )
+    files_as_written = {item.id: {"data": study.relative(item.config.data_file)}
+                        | ({"nodes": study.relative(item.config.nodes)} if item.config.nodes else {})
+                        for item in networks}
+    pages: list[tuple[str, str, dict[str, Any]]] = []
+
+    summary_html: Markup | None = None
+    if summary is not None:
+        summary_html = render_markdown(summary, allow_html=allow_html,
+                                       note_href=_note_linker(INDEX, stems), shift_headings=1,
+                                       drop_title=study.title).html
+    pages.append((INDEX, "index.html", overview_context(
+        site.frame(INDEX, study.title), networks, summary=summary_html,
+        built=build_info.get("built", ""))))
+
+    for item in networks:
+        path = network_page(item.id)
+        pages.append((path, "network.html", network_context(item, site.frame(path, item.title))))
+        path = nodes_page(item.id)
+        frame = site.frame(path, f"{item.title}: every node", section=network_page(item.id),
+                           scripts=(TABLE_SCRIPT,))
+        pages.append((path, "nodes.html", nodes_context(item, frame)))
+
+    pages.append((METHODS, "methods.html", methods_context(
+        site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
+    pages.append((CHECKS, "checks.html", checks_context(site.frame(CHECKS, "Data checks"), networks)))
+    pages.append((DOWNLOADS, "downloads.html", downloads_context(
+        site.frame(DOWNLOADS, "Downloads"), networks,
+        {net_id: paths["nodes"] for net_id, paths in files_as_written.items() if "nodes" in paths})))
+
+    for (stem, note), (_, title) in zip(rendered.items(), site.notes):
+        path = note_page(stem)
+        pages.append((path, "note.html", {"page": site.frame(path, title), "body": note.html,
+                                          "has_title": note.title is not None}))
+
+    output = {path: theme.render(template, context).encode("utf-8")
+              for path, template, context in pages}
+    output.update({f"static/{name}": data for name, data in theme.static.items()})
+    return dict(sorted(output.items()))

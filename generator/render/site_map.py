@@ -1,0 +1,109 @@
+"""Where every page and download lives, how pages link to each other, and the shared navigation."""
+
+from __future__ import annotations
+
+import posixpath
+from dataclasses import dataclass
+from urllib.parse import quote
+
+__all__ = [
+    "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "Link", "PageFrame",
+    "SiteMap", "figure_file", "network_file", "network_page", "nodes_page", "note_page", "page_href",
+]
+
+INDEX = "index.html"
+METHODS = "methods.html"
+CHECKS = "checks.html"
+DOWNLOADS = "downloads.html"
+DATAPACKAGE = "files/datapackage.json"
+MANIFEST = "manifest.json"
+
+
+def network_page(network_id: str) -> str:
+    return f"networks/{network_id}/index.html"
+
+
+def nodes_page(network_id: str) -> str:
+    return f"networks/{network_id}/nodes.html"
+
+
+def note_page(stem: str) -> str:
+    return f"notes/{stem}.html"
+
+
+def network_file(network_id: str, name: str) -> str:
+    """A download of one network: ``nodes.csv``, ``edges.csv``, ``statistics.csv``, ``network.graphml``."""
+    return f"files/{network_id}/{name}"
+
+
+def figure_file(network_id: str, figure: str, extension: str) -> str:
+    return f"networks/{network_id}/figures/{figure}.{extension}"
+
+
+def page_href(from_path: str, to_path: str) -> str:
+    """A relative link from one site file to another (works from file:// and any sub-path)."""
+    target, _, fragment = to_path.partition("#")
+    relative = posixpath.relpath(target, posixpath.dirname(from_path) or ".")
+    return quote(relative, safe="/") + (f"#{quote(fragment, safe='')}" if fragment else "")
+
+
+@dataclass(frozen=True)
+class Link:
+    label: str
+    href: str
+    current: str | None = None  # the aria-current value: "page" for this page, "true" for its section
+
+
+@dataclass(frozen=True)
+class PageFrame:
+    """What every page shows around its content."""
+
+    path: str
+    title: str
+    study_title: str
+    root: str  # relative prefix to the site root: "", "../" or "../../"
+    nav: tuple[Link, ...]
+    notes_nav: tuple[Link, ...]
+    version: str
+    scripts: tuple[str, ...] = ()  # hrefs of scripts the page loads
+    subnav: tuple[Link, ...] = ()  # the pages of one network, on those pages
+
+    @property
+    def stylesheet(self) -> str:
+        return self.root + "static/site.css"
+
+    def href(self, to_path: str) -> str:
+        return page_href(self.path, to_path)
+
+
+class SiteMap:
+    """The pages of one site, their titles, and the navigation built for each of them."""
+
+    def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
+                 notes: list[tuple[str, str]], version: str):
+        self.study_title = study_title
+        self.networks = networks  # (id, title) in study order
+        self.notes = notes  # (stem, title), sorted by stem
+        self.version = version
+
+    def frame(self, path: str, title: str, *, section: str | None = None,
+              scripts: tuple[str, ...] = ()) -> PageFrame:
+        """The frame of the page at ``path``; ``section`` is the nav target it belongs under."""
+
+        def link(label: str, target: str) -> Link:
+            current = "page" if target == path else "true" if target == section else None
+            return Link(label, page_href(path, target), current)
+
+        nav = [link("Overview", INDEX)]
+        nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
+        nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
+        notes = tuple(link(note_title, note_page(stem)) for stem, note_title in self.notes)
+        subnav: tuple[Link, ...] = ()
+        for net_id, _ in self.networks:
+            if path in (network_page(net_id), nodes_page(net_id)):
+                subnav = (link("Results", network_page(net_id)),
+                          link("Every node", nodes_page(net_id)))
+        root = "../" * path.count("/")
+        return PageFrame(path=path, title=title, study_title=self.study_title, root=root,
+                         nav=tuple(nav), notes_nav=notes, version=self.version,
+                         scripts=tuple(page_href(path, s) for s in scripts), subnav=subnav)

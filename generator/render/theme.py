@@ -1,0 +1,119 @@
+"""Find a site theme and make the jinja environment that renders its templates.
+
+A theme is a folder with ``templates/`` and ``static/``. ``[site] theme`` names a theme shipped
+with netfolio or gives a folder (relative to the study folder) whose files override the default
+theme's files of the same name.
+"""
+
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass
+from importlib import resources
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+import jinja2
+
+from ..config import StudyConfig
+from ..errors import ConfigError
+
+if TYPE_CHECKING:  # importlib.resources.abc is new in Python 3.11
+    from importlib.abc import Traversable
+
+__all__ = ["DEFAULT_THEME", "Theme", "load_theme", "packaged_themes"]
+
+DEFAULT_THEME = "default"
+_THEME_KEY = "site.theme"
+
+
+def _packaged_root() -> Traversable:
+    return resources.files("generator.themes")
+
+
+def packaged_themes() -> list[str]:
+    """Names of the themes shipped inside the package, sorted."""
+    root = _packaged_root()
+    return sorted(entry.name for entry in root.iterdir()
+                  if entry.is_dir() and (entry / "templates").is_dir())
+
+
+def _read_tree(folder: Traversable, prefix: str = "") -> dict[str, bytes]:
+    """Every file below ``folder`` by relative posix path; hidden files and caches are skipped."""
+    found: dict[str, bytes] = {}
+    if not folder.is_dir():
+        return found
+    for entry in sorted(folder.iterdir(), key=lambda e: e.name):
+        if entry.name.startswith(".") or entry.name == "__pycache__":
+            continue
+        if entry.is_dir():
+            found.update(_read_tree(entry, f"{prefix}{entry.name}/"))
+        else:
+            found[prefix + entry.name] = entry.read_bytes()
+    return found
+
+
+@dataclass(frozen=True)
+class Theme:
+    """The templates (user folder first, then the default) and the static files of the site."""
+
+    name: str
+    environment: jinja2.Environment
+    static: dict[str, bytes]  # relative posix path under static/ -> bytes
+
+    def render(self, template: str, context: dict[str, Any]) -> str:
+        """Render ``template``; a broken template becomes a ConfigError naming file and line."""
+        try:
+            return self.environment.get_template(template).render(context)
+        except jinja2.TemplateSyntaxError as exc:
+            raise ConfigError(f"template {exc.name or template}, line {exc.lineno}: {exc.message}",
+                              key=_THEME_KEY) from None
+        except jinja2.TemplateError as exc:
+            raise ConfigError(f"template {template} of theme '{self.name}' failed: {exc}",
+                              key=_THEME_KEY) from None
+
+
+def _environment(loaders: list[jinja2.BaseLoader]) -> jinja2.Environment:
+    return jinja2.Environment(
+        loader=jinja2.ChoiceLoader(loaders),
+        autoescape=True,  # every string from data or config is escaped
+        undefined=jinja2.StrictUndefined,  # a misspelt variable fails the build, not the page
+        trim_blocks=True,
+        lstrip_blocks=True,
+        keep_trailing_newline=True,
+    )
+
+
+def _packaged_loader(name: str) -> tuple[jinja2.BaseLoader, dict[str, bytes]]:
+    folder = _packaged_root() / name
+    templates = {path: data.decode("utf-8")
+                 for path, data in _read_tree(folder / "templates").items()}
+    return jinja2.DictLoader(templates), _read_tree(folder / "static")
+
+
+def load_theme(study: StudyConfig) -> Theme:
+    """The theme ``study.site.theme`` names; raise ConfigError (key ``site.theme``) if unknown."""
+    name = study.site.theme
+    default_loader, static = _packaged_loader(DEFAULT_THEME)
+    shipped = packaged_themes()
+    if name in shipped:
+        if name == DEFAULT_THEME:
+            return Theme(name, _environment([default_loader]), static)
+        loader, own_static = _packaged_loader(name)
+        return Theme(name, _environment([loader, default_loader]), {**static, **own_static})
+
+    folder = (study.root / name).resolve() if name.strip() else None
+    if folder is None or not folder.is_dir():
+        close = difflib.get_close_matches(name, shipped, n=1, cutoff=0.5)
+        hint = f"; did you mean '{close[0]}'?" if close else ""
+        raise ConfigError(f"'{name}' is neither a theme shipped with netfolio ({', '.join(shipped)}) "
+                          f"nor a folder in the study folder{hint}", key=_THEME_KEY)
+    templates, user_static = folder / "templates", folder / "static"
+    if not templates.is_dir() and not user_static.is_dir():
+        raise ConfigError(f"the theme folder '{name}' holds neither a templates/ nor a static/ "
+                          "folder", key=_THEME_KEY)
+    loaders: list[jinja2.BaseLoader] = []
+    if templates.is_dir():
+        loaders.append(jinja2.FileSystemLoader(str(templates), encoding="utf-8"))
+    loaders.append(default_loader)
+    return Theme(name, _environment(loaders), {**static, **_read_tree(Path(user_static))})
