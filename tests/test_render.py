@@ -441,6 +441,35 @@ def test_downloads_page_describes_every_file_and_the_columns(built):
     assert "<code>weight</code>" in html
 
 
+def test_a_tiny_matrix_network_without_node_list_reads_plainly(tmp_path):
+    (tmp_path / "m.csv").write_text(",p,q\np,0,1\nq,1,0\n", encoding="utf-8")
+    study = StudyConfig(root=tmp_path, title="Tiny", output=tmp_path / "out", networks=(
+        NetworkConfig(id="pair", title="A pair", matrix=tmp_path / "m.csv"),),
+        communities=CommunitiesConfig(runs=2))
+    site = _render(study, _inputs(study), notes={}, summary=None)
+    network = site["networks/pair/index.html"].decode()
+    assert "not defined" in network and "Not defined below three nodes." in network
+    methods = site["methods.html"].decode()
+    assert "adjacency matrix m.csv" in methods and "there is no node list" in methods
+    assert "Repeated ties" not in methods
+    downloads = site["downloads.html"].decode()
+    assert "the id: no label column is set" in downloads
+    assert "<code>weight</code>" not in downloads  # 0/1 cells: unweighted
+    assert "Notes" not in _Page(site["index.html"].decode()).text  # no notes, no notes menu
+
+
+def test_figures_keep_their_size_and_wide_ones_take_the_row(tmp_path):
+    study = _study(tmp_path)
+    items = _inputs(study)
+    wide = Figure(name="degree", title="Wide", alt="two panels", caption="c",
+                  svg=b'<?xml version="1.0"?><svg width="600pt" height="200pt" viewBox="0 0 600 200">',
+                  png=b"")
+    site = _render(study, [replace(items[0], figures=[wide])] + items[1:])
+    html = site["networks/advice/index.html"].decode()
+    assert 'class="figure figure-wide"' in html
+    assert 'width="800" height="267"' in html
+
+
 # ---------------------------------------------------------------------------------------------
 # Themes
 
@@ -487,6 +516,7 @@ def test_a_broken_user_template_is_a_config_error_naming_the_template(tmp_path):
 @pytest.mark.parametrize(("value", "text"), [
     (0.0147701, "0.01477"), (0.5, "0.5"), (12.0, "12"), (12345.678, "12,350"), (9.99996, "10"),
     (-0.0079912, "-0.007991"), (0.0000123456, "1.235e-05"), (1.0, "1"), (0.0, "0"),
+    (float("nan"), "\u2014"), (float("inf"), "\u221e"),
 ])
 def test_numbers_show_four_significant_digits(value, text):
     assert significant(value) == text
@@ -521,7 +551,9 @@ def test_stability_reading_follows_agreement_between_runs():
                                                             best_run_share=0.8))
     assert "mostly agreed" in stability_reading(_partition(mean_ari=0.8, distinct_partitions=4))
     assert "tentative" in stability_reading(_partition(mean_ari=0.3, distinct_partitions=9))
-    assert "no ties" in stability_reading(_partition(mean_ari=None, mean_nmi=None))
+    assert "no ties" in stability_reading(_partition(mean_ari=None, mean_nmi=None, modularity=None))
+    assert "could not be measured" in stability_reading(_partition(mean_ari=float("nan"),
+                                                                   distinct_partitions=2))
     assert "Only one run" in stability_reading(_partition(runs=1))
 
 

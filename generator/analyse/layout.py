@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import random
 
 import igraph as ig
@@ -11,20 +12,46 @@ from .seeding import seeded_igraph
 
 __all__ = ["network_layout"]
 
+ISOLATE_ROW_GAP = 0.08  # distance between the network and the row of isolates, in layout units
+
 
 def network_layout(graph: ig.Graph, *, seed: int, weighted: bool) -> list[tuple[float, float]]:
-    """Fruchterman-Reingold (1991) on the undirected version, stronger ties pulling harder,
-    scaled into the unit square and rounded so figures are byte-stable."""
+    """Fruchterman-Reingold (1991) on the undirected version, stronger ties pulling harder, scaled
+    into the unit square and rounded so figures are byte-stable.
+
+    Isolates would drift to the edges and squeeze the rest into the middle, so they are laid out
+    in a row beneath the connected part instead."""
     undirected = undirected_version(graph)
     n = undirected.vcount()
     if n == 0:
         return []
-    start = random.Random(f"layout:{seed}")
-    initial = [[start.uniform(-1, 1), start.uniform(-1, 1)] for _ in range(n)]
-    with seeded_igraph(seed):
-        layout = undirected.layout_fruchterman_reingold(
-            seed=initial, weights=undirected.es["strength"] if weighted else None, niter=1000,
-            grid=False)
-    xs, ys = [p[0] for p in layout], [p[1] for p in layout]
+    degrees = undirected.degree()
+    tied = [v for v in range(n) if degrees[v] > 0]
+    isolates = [v for v in range(n) if degrees[v] == 0]
+    positions: dict[int, tuple[float, float]] = {}
+    if tied:
+        sub = undirected.induced_subgraph(tied)
+        start = random.Random(f"layout:{seed}")
+        initial = [[start.uniform(-1, 1), start.uniform(-1, 1)] for _ in tied]
+        with seeded_igraph(f"layout:{seed}"):
+            coords = sub.layout_fruchterman_reingold(
+                seed=initial, weights=sub.es["strength"] if weighted else None, niter=1000,
+                grid=False)
+        xs, ys = [p[0] for p in coords], [p[1] for p in coords]
+        span = max(max(xs) - min(xs), max(ys) - min(ys)) or 1.0
+        for v, (x, y) in zip(tied, coords):
+            # y grows upwards in figures; the isolates' row goes below the lowest node
+            positions[v] = ((x - min(xs)) / span, (y - min(ys)) / span)
+    if isolates:
+        per_row = max(1, math.ceil(math.sqrt(len(isolates)) * 2))
+        width = max((x for x, _ in positions.values()), default=1.0) or 1.0
+        step = width / max(per_row - 1, 1)
+        for k, v in enumerate(isolates):
+            row, col = divmod(k, per_row)
+            positions[v] = (col * step if per_row > 1 else width / 2,
+                            -ISOLATE_ROW_GAP * (1 + row) if tied else -row * step)
+    xs = [positions[v][0] for v in range(n)]
+    ys = [positions[v][1] for v in range(n)]
     span = max(max(xs) - min(xs), max(ys) - min(ys)) or 1.0
-    return [(round((x - min(xs)) / span, 6), round((y - min(ys)) / span, 6)) for x, y in layout]
+    return [(round((positions[v][0] - min(xs)) / span + 0.0, 6),
+             round((positions[v][1] - min(ys)) / span + 0.0, 6)) for v in range(n)]

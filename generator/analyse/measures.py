@@ -202,7 +202,9 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
     columns["clustering"] = undirected.transitivity_local_undirected(mode="zero")
 
     table = pd.DataFrame(columns, index=pd.Index(graph.vs["name"], name="id"))
-    for name in ("degree", "in_degree", "out_degree", "coreness"):
-        if name in table:
+    for name in table.columns:
+        if name in ("degree", "in_degree", "out_degree", "coreness"):
             table[name] = table[name].astype("int64")
+        else:
+            table[name] = table[name].astype(float) + 0.0  # -0.0 from eigensolvers prints as 0.0
     return NodeMeasures(table=table, omitted=omitted, sampling=sampling)

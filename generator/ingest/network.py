@@ -258,6 +258,7 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
     if loops:
         checks.add(Finding("fix", name, f"{len(loops)} self-loop(s) removed (a tie from a node to "
                            f"itself) on line(s) {_lines([t.line for t in loops])}",
+                           line=loops[0].line if len(loops) == 1 else None,
                            value=loops[0].source, count=len(loops)))
     kept = [t for t in ties if t.source != t.target]
 
@@ -317,6 +318,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
         shown = ", ".join(f"{n!r} (line {line})" for n, line in list(unknown.items())[:MAX_LINES_LISTED])
         checks.add(Finding("fix", data_name, f"{len(unknown)} node(s) appear in ties but not in the "
                            f"node list {study.relative(net.nodes)}; added with no attributes: {shown}",
+                           line=next(iter(unknown.values())) if len(unknown) == 1 else None,
                            value=next(iter(unknown)), count=len(unknown)))
 
     all_ids = sorted(known | set(listed), key=natural_key)

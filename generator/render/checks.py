@@ -70,11 +70,10 @@ def finding_groups(findings: tuple[Finding, ...] | list[Finding]) -> tuple[Findi
 def _rules(item: NetworkPageInput) -> tuple[str, ...]:
     config, analysis = item.config, item.analysis
     how = f", weights combined by {config.duplicates}" if analysis.weighted else ""
-    return (
-        f"Repeated ties between the same pair are merged into one tie{how}.",
-        "Self-loops (ties from a node to itself) are removed.",
-        "Lines count as in a text editor: the header is line 1.",
-    )
+    repeats = (() if config.matrix is not None else
+               (f"Repeated ties between the same pair are merged into one tie{how}.",))
+    return (*repeats, "Self-loops (ties from a node to itself) are removed.",
+            "Lines count as in a text editor: the header is line 1.")
 
 
 def checks_context(frame: PageFrame, networks: list[NetworkPageInput]) -> dict[str, Any]:

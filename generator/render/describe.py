@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from ..analyse import MEASURE_INFO, STATISTIC_INFO, CommunityResult, NetworkAnalysis
 from ..config import NetworkConfig
-from .display import significant
+from .display import is_missing, significant
 
 __all__ = [
     "COMMUNITY_METHOD_TITLES", "PATH_MEASURES", "a_network", "measure_title", "network_kind",
@@ -75,7 +75,7 @@ def weight_reading(reads: str, analysis: NetworkAnalysis) -> str:
 
 def stability_reading(result: CommunityResult) -> str:
     """A plain sentence on how far the seeded runs agreed with the partition kept."""
-    if result.mean_ari is None:
+    if result.mean_ari is None and result.modularity is None:
         return ("The network has no ties, so every node forms its own community and there is "
                 "nothing to compare.")
     if result.runs == 1:
@@ -85,12 +85,16 @@ def stability_reading(result: CommunityResult) -> str:
     share = f"{result.best_run_share:.0%}"
     if result.distinct_partitions == 1:
         return f"All {runs} runs found exactly the same communities: the split is stable."
+    if is_missing(result.mean_ari):
+        return (f"The {runs} runs found {result.distinct_partitions} different partitions "
+                f"({share} found this one); their agreement could not be measured.")
     if result.mean_ari >= 0.9:
         return (f"The {runs} runs agreed closely: {share} found exactly this partition and the "
                 "others differed only slightly.")
     if result.mean_ari >= 0.7:
         return (f"The {runs} runs mostly agreed: the main groups are stable, but some nodes moved "
-                f"between communities from run to run ({share} of runs found this exact partition).")
-    return (f"The {runs} runs disagreed (mean adjusted Rand index {significant(result.mean_ari, 2)}): "
-            "this partition is one of several about equally good ones, so read the communities as "
-            "tentative.")
+                f"between communities from run to run ({share} of runs found this exact "
+                "partition).")
+    ari = significant(result.mean_ari, 2)
+    return (f"The {runs} runs disagreed (mean adjusted Rand index {ari}): this partition is one "
+            "of several about equally good ones, so read the communities as tentative.")

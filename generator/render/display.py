@@ -31,6 +31,8 @@ def significant(value: float, digits: int = DEFAULT_DIGITS) -> str:
 
     Whole numbers keep every digit (with thousands separators); trailing zeros are dropped.
     """
+    if math.isnan(value):
+        return MISSING
     if math.isinf(value):
         return "\u221e" if value > 0 else "-\u221e"
     if float(value).is_integer() and abs(value) < 1e15:

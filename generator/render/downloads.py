@@ -46,7 +46,8 @@ class NetworkDownloads:
     figures: tuple[FigureDownload, ...]
 
 
-def node_columns_described(item: NetworkPageInput, nodes_file: str | None) -> tuple[ColumnInfo, ...]:
+def node_columns_described(item: NetworkPageInput, nodes_file: str | None
+                           ) -> tuple[ColumnInfo, ...]:
     """The columns of ``files/<id>/nodes.csv`` in order, each with its meaning."""
     config, analysis = item.config, item.analysis
     columns = [ColumnInfo("id", "node id as written in the data")]

@@ -107,7 +107,8 @@ def reference_entries(references: Iterable[Reference], *, link_dois: bool = True
         unique.setdefault(ref.key, ref)
     return tuple(ReferenceEntry(
         number=i, anchor=f"ref-{ref.key}", text=ref.text, doi=ref.doi,
-        doi_href=f"https://doi.org/{quote(ref.doi, safe='/()-._;:')}" if ref.doi and link_dois else None,
+        doi_href=(f"https://doi.org/{quote(ref.doi, safe='/()-._;:')}"
+                  if ref.doi and link_dois else None),
     ) for i, ref in enumerate(unique.values(), start=1))
 
 
@@ -118,8 +119,9 @@ def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ..
         read = (f"Ties were read from the adjacency matrix {data} (rows send, columns receive; a "
                 "cell is the tie's weight, an empty cell or 0 means no tie).")
     else:
+        weight = f", weight '{config.weight}'" if config.weight else ""
         read = (f"Ties were read from the edge list {data} (columns '{config.source}' and "
-                f"'{config.target}'" + (f", weight '{config.weight}'" if config.weight else "") + ").")
+                f"'{config.target}'{weight}).")
     if "nodes" in relative:
         read += (f" Node attributes came from {relative['nodes']} (id column '{config.node_id}'"
                  + (f", label column '{config.label}'" if config.label else "") + ").")
@@ -130,9 +132,11 @@ def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ..
     direction = ("in the same direction" if analysis.directed
                  else "in either direction, as the network is undirected")
     combine = (f", their weights combined by {config.duplicates}" if analysis.weighted else "")
-    sentences = [
-        read,
-        f"Repeated ties between the same pair ({direction}) were merged into one tie{combine}.",
+    sentences = [read]
+    if config.matrix is None:  # a matrix has one cell per pair, so nothing can repeat
+        sentences.append(f"Repeated ties between the same pair ({direction}) were merged into one "
+                         f"tie{combine}.")
+    sentences += [
         "Self-loops (ties from a node to itself) were removed.",
         f"{nodes} Results do not depend on the order of rows in the files.",
     ]
@@ -156,7 +160,8 @@ def _statistic_methods(item: NetworkPageInput, cite: _Citations) -> tuple[Statis
         attributes = [n.split(":", 1)[1] for n in names if ":" in n]
         if attributes:
             title = f"{title} ({', '.join(attributes)})"
-        methods.append(StatisticMethod(title, tuple(names), info.definition, cite.cite(info.references)))
+        methods.append(StatisticMethod(title, tuple(names), info.definition,
+                                       cite.cite(info.references)))
     return tuple(methods)
 
 
@@ -191,7 +196,7 @@ def _community_text(item: NetworkPageInput) -> tuple[tuple[tuple[str, str], ...]
 
 def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
                     relative: dict[str, str]) -> NetworkMethods:
-    """``relative`` maps "data" (and "nodes" when there is a node list) to paths as the user wrote them."""
+    """``relative`` maps "data" (and "nodes" if there is a node list) to paths as written."""
     analysis = item.analysis
     measures = []
     for column in analysis.measures.columns:
@@ -203,7 +208,8 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
                                               analysis.communities.method, ()))))
             continue
         measures.append(MeasureMethod(column, info.title, info.definition,
-                                      weight_reading(info.reads, analysis), cite.cite(info.references)))
+                                      weight_reading(info.reads, analysis),
+                                      cite.cite(info.references)))
     parameters, community_sentences = _community_text(item)
     pull = ", stronger ties pulling harder" if analysis.weighted else ""
     return NetworkMethods(
@@ -232,9 +238,9 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
         stability_citations=cite.cite(_STABILITY_REFERENCES),
         layout=(f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
                 f"undirected version{pull}, started from positions drawn with the study seed "
-                f"{analysis.seed} and scaled into a square, so the same data give the same picture. "
-                "Distances in a drawing are not path lengths: read who is tied to whom, not how far "
-                "apart nodes are drawn."),
+                f"{analysis.seed} and scaled into a square, so the same data give the same "
+                "picture. Distances in a drawing are not path lengths: read who is tied to whom, "
+                "not how far apart nodes are drawn."),
         layout_citations=cite.cite(_LAYOUT_REFERENCES),
         seed=analysis.seed,
         versions=tuple(analysis.versions.items()),

@@ -8,18 +8,17 @@ from dataclasses import dataclass
 from typing import Any
 
 from ..analyse import MEASURE_INFO, CommunityResult, NetworkAnalysis, Statistic
-from ..draw.figure import Figure
-from .describe import (COMMUNITY_METHOD_TITLES, PATH_MEASURES, a_network, measure_title, network_kind,
-                       stability_reading, statistic_title, weights_sentence)
+from .describe import (COMMUNITY_METHOD_TITLES, PATH_MEASURES, a_network, measure_title,
+                       network_kind, stability_reading, statistic_title, weights_sentence)
 from .display import is_missing, shown, significant
+from .figures import figure_views
 from .inputs import NetworkPageInput
-from .site_map import (CHECKS, DOWNLOADS, METHODS, PageFrame, figure_file, network_file,
-                       network_page, nodes_page)
+from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
 
 __all__ = [
-    "TOP_COUNT", "CommunityRow", "CommunityView", "FigureView", "NetworkFacts", "RankedNode",
-    "StatisticRow", "TopTable", "community_view", "figure_views", "network_context",
-    "network_facts", "sampling_sentence", "statistic_rows", "top_tables",
+    "TOP_COUNT", "CommunityRow", "CommunityView", "NetworkFacts", "RankedNode", "StatisticRow",
+    "TopTable", "community_view", "network_context", "network_facts", "sampling_sentence",
+    "statistic_rows", "top_tables",
 ]
 
 TOP_COUNT = 10
@@ -34,20 +33,6 @@ class StatisticRow:
     value: str  # rounded for the page, or "not defined"
     reading: str
     defined: bool
-
-
-@dataclass(frozen=True)
-class FigureView:
-    name: str
-    title: str
-    alt: str
-    caption: str
-    svg_href: str
-    png_href: str
-    anchor: str
-    width: int | None  # CSS pixels at natural size, from the SVG's viewBox; None if unknown
-    height: int | None
-    wide: bool  # much wider than tall (several panels): shown across the full page width
 
 
 @dataclass(frozen=True)
@@ -124,10 +109,9 @@ def _sentence(text: str) -> str:
 
 
 def _not_defined_reason(note: str) -> str:
-    for prefix in ("not defined:", "not defined"):
-        if note.lower().startswith(prefix):
-            note = note[len(prefix):]
-            break
+    # "not defined: no ties" -> "No ties."; "not defined below three nodes" reads well as it is
+    if note.lower().startswith("not defined:"):
+        note = note[len("not defined:"):]
     return _sentence(note) or "The statistic does not apply to this network."
 
 
@@ -179,50 +163,8 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
     )
 
 
-_SVG_TAG = re.compile(rb"<svg\b[^>]*>", re.S)
-_LENGTH = {"": 1.0, "px": 1.0, "pt": 4 / 3, "in": 96.0, "cm": 96 / 2.54, "mm": 96 / 25.4}
-_WIDE = 1.8  # width / height above which a figure gets the whole row
-
-
-def _svg_length(tag: str, name: str) -> float | None:
-    match = re.search(rf"""\b{name}=["']\s*([\d.]+)\s*([a-z]*)\s*["']""", tag)
-    if not match or match.group(2) not in _LENGTH:
-        return None
-    try:
-        return float(match.group(1)) * _LENGTH[match.group(2)]
-    except ValueError:
-        return None
-
-
-def _svg_size(svg: bytes) -> tuple[int, int] | None:
-    """The figure's natural size in CSS pixels, from the width and height of its <svg> tag."""
-    match = _SVG_TAG.search(svg[:8192])
-    if not match:
-        return None
-    tag = match.group(0).decode("utf-8", "replace")
-    width, height = _svg_length(tag, "width"), _svg_length(tag, "height")
-    if not width or not height:
-        return None
-    return round(width), round(height)
-
-
-def figure_views(frame: PageFrame, network_id: str, figures: list[Figure]) -> tuple[FigureView, ...]:
-    views = []
-    for f in figures:
-        size = _svg_size(f.svg)
-        views.append(FigureView(
-            name=f.name, title=f.title, alt=f.alt, caption=f.caption,
-            svg_href=frame.href(figure_file(network_id, f.name, "svg")),
-            png_href=frame.href(figure_file(network_id, f.name, "png")),
-            anchor=f"figure-{f.name}",
-            width=size[0] if size else None,
-            height=size[1] if size else None,
-            wide=bool(size and size[0] / size[1] > _WIDE),
-        ))
-    return tuple(views)
-
-
-def _ranked(values: list[float], labels: list[str], count: int) -> tuple[tuple[RankedNode, ...], int]:
+def _ranked(values: list[float], labels: list[str], count: int
+            ) -> tuple[tuple[RankedNode, ...], int]:
     order = sorted((i for i, v in enumerate(values) if not math.isnan(v)),
                    key=lambda i: (-values[i], i))  # ties keep node order
     rows = []
@@ -253,7 +195,7 @@ def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTa
 
 
 def _optional(value: float | None) -> str:
-    return "not defined" if value is None else significant(value, 3)
+    return "not defined" if is_missing(value) else significant(value, 3)
 
 
 def community_view(result: CommunityResult) -> CommunityView:
@@ -291,10 +233,12 @@ def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
     if sampling is None:
         return None
     present = [measure_title(c).lower() for c in PATH_MEASURES if c in analysis.measures.columns]
+    derived = (" Betweenness centralization is computed from the estimated betweenness."
+               if "betweenness" in analysis.measures.columns else "")
     return (f"The network has {sampling.nodes:,} nodes, so {', '.join(present)} were estimated "
             f"from shortest paths out of {sampling.sources:,} randomly chosen source nodes (seed "
             f"{sampling.seed}) rather than from every node; values are estimates, best for "
-            "comparing nodes within this network.")
+            f"comparing nodes within this network.{derived}")
 
 
 def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
@@ -313,7 +257,8 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
         "top_tables": top_tables(analysis),
         "top_count": TOP_COUNT,
         "communities": community_view(analysis.communities),
-        "omitted": tuple((measure_title(name), reason) for name, reason in analysis.omitted.items()),
+        "omitted": tuple((measure_title(name), reason)
+                         for name, reason in analysis.omitted.items()),
         "sampling": sampling_sentence(analysis),
         "links": {
             "nodes": frame.href(nodes_page(item.id)),
@@ -321,6 +266,5 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
             "checks": frame.href(f"{CHECKS}#{anchor}"),
             "downloads": frame.href(f"{DOWNLOADS}#{anchor}"),
             "nodes_csv": frame.href(network_file(item.id, "nodes.csv")),
-            "self": frame.href(network_page(item.id)),
         },
     }

@@ -39,7 +39,8 @@ class NodeRow:
 def _table(item: NetworkPageInput) -> pd.DataFrame:
     """The columns of nodes.csv after the id, in its order: label, attributes, measures."""
     analysis = item.analysis
-    nodes = analysis.nodes[["label", *analysis.attributes]]
+    # By position, not name: an attribute may share a name with "label" or a measure.
+    nodes = analysis.nodes.iloc[:, :1 + len(analysis.attributes)]
     measures = analysis.measures.reindex(nodes.index)
     return pd.concat([nodes, measures], axis=1)
 
@@ -47,8 +48,9 @@ def _table(item: NetworkPageInput) -> pd.DataFrame:
 def node_columns(item: NetworkPageInput) -> tuple[Column, ...]:
     analysis = item.analysis
     columns = [Column("id", "Id", False), Column("label", "Label", False)]
-    columns += [Column(a, a, bool(pd.api.types.is_numeric_dtype(analysis.nodes[a].dtype)))
-                for a in analysis.attributes]
+    dtypes = analysis.nodes.dtypes.iloc[1:]  # by position: names may repeat (see _table)
+    columns += [Column(a, a, bool(pd.api.types.is_numeric_dtype(dtype)))
+                for a, dtype in zip(analysis.attributes, dtypes)]
     columns += [Column(m, measure_title(m), True) for m in analysis.measures.columns]
     return tuple(columns)
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import Any
+from typing import Any, Callable
 
 from markupsafe import Markup
 
@@ -29,7 +29,7 @@ def _stem_title(stem: str) -> str:
     return words[:1].upper() + words[1:] if words else stem
 
 
-def _note_linker(page: str, stems: set[str]):
+def _note_linker(page: str, stems: set[str]) -> Callable[[str], str | None]:
     def href(stem: str) -> str | None:
         return page_href(page, note_page(stem)) if stem in stems else None
     return href
@@ -60,9 +60,11 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         notes=[(stem, note.title or _stem_title(stem)) for stem, note in rendered.items()],
         version=build_info.get("netfolio", ""),
     )
-    files_as_written = {item.id: {"data": study.relative(item.config.data_file)}
-                        | ({"nodes": study.relative(item.config.nodes)} if item.config.nodes else {})
-                        for item in networks}
+    files_as_written: dict[str, dict[str, str]] = {}
+    for item in networks:
+        files_as_written[item.id] = {"data": study.relative(item.config.data_file)}
+        if item.config.nodes is not None:
+            files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
     pages: list[tuple[str, str, dict[str, Any]]] = []
 
     summary_html: Markup | None = None
@@ -84,10 +86,12 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
 
     pages.append((METHODS, "methods.html", methods_context(
         site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
-    pages.append((CHECKS, "checks.html", checks_context(site.frame(CHECKS, "Data checks"), networks)))
-    pages.append((DOWNLOADS, "downloads.html", downloads_context(
-        site.frame(DOWNLOADS, "Downloads"), networks,
-        {net_id: paths["nodes"] for net_id, paths in files_as_written.items() if "nodes" in paths})))
+    pages.append((CHECKS, "checks.html",
+                  checks_context(site.frame(CHECKS, "Data checks"), networks)))
+    node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
+                  if "nodes" in paths}
+    pages.append((DOWNLOADS, "downloads.html",
+                  downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files)))
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)

@@ -8,7 +8,8 @@ from urllib.parse import quote
 
 __all__ = [
     "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "Link", "PageFrame",
-    "SiteMap", "figure_file", "network_file", "network_page", "nodes_page", "note_page", "page_href",
+    "SiteMap", "figure_file", "network_file", "network_page", "nodes_page", "note_page",
+    "page_href",
 ]
 
 INDEX = "index.html"
@@ -32,7 +33,7 @@ def note_page(stem: str) -> str:
 
 
 def network_file(network_id: str, name: str) -> str:
-    """A download of one network: ``nodes.csv``, ``edges.csv``, ``statistics.csv``, ``network.graphml``."""
+    """A download of one network: nodes.csv, edges.csv, statistics.csv or network.graphml."""
     return f"files/{network_id}/{name}"
 
 
@@ -51,7 +52,7 @@ def page_href(from_path: str, to_path: str) -> str:
 class Link:
     label: str
     href: str
-    current: str | None = None  # the aria-current value: "page" for this page, "true" for its section
+    current: str | None = None  # aria-current: "page" for this page, "true" for its section
 
 
 @dataclass(frozen=True)

@@ -106,8 +106,9 @@ def load_theme(study: StudyConfig) -> Theme:
     if folder is None or not folder.is_dir():
         close = difflib.get_close_matches(name, shipped, n=1, cutoff=0.5)
         hint = f"; did you mean '{close[0]}'?" if close else ""
-        raise ConfigError(f"'{name}' is neither a theme shipped with netfolio ({', '.join(shipped)}) "
-                          f"nor a folder in the study folder{hint}", key=_THEME_KEY)
+        raise ConfigError(f"'{name}' is neither a theme shipped with netfolio "
+                          f"({', '.join(shipped)}) nor a folder in the study folder{hint}",
+                          key=_THEME_KEY)
     templates, user_static = folder / "templates", folder / "static"
     if not templates.is_dir() and not user_static.is_dir():
         raise ConfigError(f"the theme folder '{name}' holds neither a templates/ nor a static/ "
