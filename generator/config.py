@@ -74,11 +74,6 @@ class NetworkConfig:
     def data_file(self) -> Path:
         return self.edges if self.edges is not None else self.matrix  # type: ignore[return-value]
 
-    @property
-    def weighted(self) -> bool:
-        """Matrices are weighted whenever a cell differs from 0/1; ingest decides that."""
-        return self.weight is not None
-
 
 @dataclass(frozen=True, kw_only=True)
 class CommunitiesConfig:

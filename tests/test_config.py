@@ -58,7 +58,7 @@ def test_minimal_study_loads_with_documented_defaults(tmp_path):
     assert network.id == "advice" and network.title == "advice"
     assert network.edges == root / "data" / "edges.csv" and network.matrix is None
     assert (network.source, network.target, network.node_id) == ("source", "target", "id")
-    assert network.directed is False and network.weight is None and network.weighted is False
+    assert network.directed is False and network.weight is None
     assert (network.weight_means, network.duplicates) == ("strength", "sum")
 
 

@@ -79,8 +79,9 @@ class NetworkAnalysis:
         for stat in self.statistics:
             info = STATISTIC_INFO.get(stat.name) or STATISTIC_INFO.get(stat.name.split(":")[0])
             keys += info.references if info else ()
-        keys += COMMUNITY_REFERENCES[self.communities.method] + ("hubert1985", "danon2005")
-        keys.append("fruchterman1991")
+        if self.communities.objective is not None:  # the runs happened (the network has ties)
+            keys += COMMUNITY_REFERENCES[self.communities.method] + ("hubert1985", "danon2005")
+        keys += ["fruchterman1991", "okabe2008"]  # the map's layout and colours
         return [REFERENCES[k] for k in dict.fromkeys(keys)]
 
 

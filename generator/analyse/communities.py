@@ -3,6 +3,7 @@ agreement between runs as a measure of stability."""
 
 from __future__ import annotations
 
+import math
 import random
 from dataclasses import dataclass
 
@@ -44,6 +45,12 @@ class CommunityResult:
     @property
     def count(self) -> int:
         return len(self.sizes)
+
+
+def _mean_or_none(values: list[float]) -> float | None:
+    """The mean, or None where agreement is undefined (e.g. every run put all nodes together)."""
+    mean = sum(values) / len(values)
+    return None if math.isnan(mean) else mean
 
 
 def run_seeds(seed: int, runs: int) -> list[int]:
@@ -108,7 +115,7 @@ def find_communities(undirected: ig.Graph, *, method: str, resolution: float, ru
         method=method, resolution=resolution, runs=runs, seed=seed, membership=best, sizes=sizes,
         objective=scores[best_index],
         modularity=undirected.modularity(list(best), weights=weights, resolution=1.0),
-        mean_ari=sum(ari) / runs, mean_nmi=sum(nmi) / runs, distinct_partitions=distinct,
+        mean_ari=_mean_or_none(ari), mean_nmi=_mean_or_none(nmi), distinct_partitions=distinct,
         best_run_share=sum(1 for p in partitions if p == best) / runs,
     )
 

@@ -63,6 +63,11 @@ MEASURE_INFO: dict[str, MeasureInfo] = {
     "clustering": MeasureInfo(
         "Local clustering", "Share of pairs of the node's neighbours that are tied to each other, on "
         "the undirected version, ignoring weights; 0 below two neighbours.", ("watts1998",), "none"),
+    "community": MeasureInfo(
+        "Community", "Community of the node in the partition kept (the best of several seeded "
+        "runs by modularity, on the undirected version with strengths); 1 is the largest, equal "
+        "sizes ordered by their first member. An isolate forms a community of its own.",
+        (), "strength"),
 }
 
 

@@ -83,8 +83,13 @@ class Statistic:
         """A plain one-line reading of the value for a non-specialist."""
         if self.value is None:
             return self.note
-        info = STATISTIC_INFO.get(self.name) or STATISTIC_INFO[self.name.split(":")[0]]
+        info = STATISTIC_INFO.get(self.name) or STATISTIC_INFO.get(self.name.split(":")[0])
         v = self.value
+        if info is None:
+            return _plain(v)
+        if self.name in _COUNTED:
+            one, many = _COUNTED[self.name]
+            return (one if v == 1 else many).format(value=_plain(v))
         if self.name.startswith("assortativity:") or self.name == "degree_assortativity":
             what = ("similar" if self.name == "degree_assortativity" else "alike in "
                     + self.name.split(":", 1)[1])
@@ -100,6 +105,15 @@ class Statistic:
         text = info.reading.format(value=_plain(v), percent=f"{v:.0%}" if abs(v) <= 1 else _plain(v))
         return f"{text[:-1]} {self.unit}." if self.unit else text
 
+
+_COUNTED = {
+    "components": ("The network is one connected whole.",
+                   "The network falls into {value} separate parts."),
+    "strong_components": ("Everyone can reach everyone along tie directions.",
+                          "{value} sets within which everyone can reach everyone along tie "
+                          "directions."),
+    "communities": ("One community was found.", "{value} communities were found."),
+}
 
 STATISTIC_INFO["assortativity"] = StatisticInfo(
     "Attribute assortativity", "Newman's nominal assortativity for text attributes, the numeric "
@@ -183,7 +197,8 @@ def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[flo
         degree_r = graph.assortativity_degree(directed=False)
     degree_r = _defined(degree_r) if m else None
     stats.append(Statistic("degree_assortativity", degree_r, "" if degree_r is not None else
-                           "not defined: every tie joins nodes of the same degree"))
+                           "not defined: no ties" if not m else
+                           "not defined: the degrees at the ends of ties do not vary"))
     for column in attributes.columns:
         stats.append(_assortativity(graph, attributes[column], f"assortativity:{column}"))
     stats.append(Statistic("modularity", modularity, "" if modularity is not None else

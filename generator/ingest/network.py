@@ -328,14 +328,19 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     if node_frame is None:
         node_frame = pd.DataFrame(index=pd.Index(all_ids, name="id"))
     node_frame = node_frame.reindex(pd.Index(all_ids, name="id"))
+    label_column = net.label
+    if label_column is None and "label" in node_frame.columns:
+        label_column = "label"  # a column called label is the natural display column
+    node_frame = _rename_reserved_columns(node_frame, label_column, study.relative(net.nodes)
+                                          if net.nodes else data_name, checks)
     attrs = _typed_attributes(node_frame)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
-    if net.label:
-        labels = node_frame[net.label].astype("string").str.strip().replace("", pd.NA)
+    if label_column:
+        labels = node_frame[label_column].astype("string").str.strip().replace("", pd.NA)
     else:
         labels = pd.Series(pd.NA, index=attrs.index, dtype="string")
     labels = labels.fillna(pd.Series(attrs.index, index=attrs.index, dtype="string"))
-    attribute_names = tuple(c for c in attrs.columns if c != net.label)
+    attribute_names = tuple(c for c in attrs.columns if c != label_column)
     nodes = pd.concat([labels.rename("label"), attrs[list(attribute_names)]], axis=1)
 
     touched = set(edges["source"]) | set(edges["target"])
@@ -347,6 +352,29 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     _check_display_settings(net, attribute_names, study)
     files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
     return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files)
+
+
+# Columns of nodes.csv that netfolio writes itself; a node attribute may not take these names.
+RESERVED_COLUMNS = ("id", "label", "degree", "in_degree", "out_degree", "strength", "in_strength",
+                    "out_strength", "betweenness", "closeness", "harmonic", "eigenvector",
+                    "pagerank", "coreness", "clustering", "community")
+
+
+def _rename_reserved_columns(frame: pd.DataFrame, label_column: str | None, name: str,
+                             checks: DataChecks) -> pd.DataFrame:
+    """An attribute called e.g. "degree" would collide with the measure in nodes.csv; keep it
+    under "degree_attribute" and say so."""
+    renames = {}
+    for column in frame.columns:
+        if column in RESERVED_COLUMNS and column != label_column:
+            new = f"{column}_attribute"
+            while new in frame.columns or new in renames.values():
+                new += "_"
+            renames[column] = new
+            checks.add(Finding("fix", name, f"node attribute {column!r} shares its name with a "
+                               f"column netfolio writes; it is kept as {new!r}", line=1,
+                               column=column))
+    return frame.rename(columns=renames) if renames else frame
 
 
 def _check_display_settings(net: NetworkConfig, attributes: tuple[str, ...], study: StudyConfig) -> None:

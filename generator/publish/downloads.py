@@ -34,8 +34,17 @@ def edges_csv(analysis: NetworkAnalysis) -> bytes:
 
 
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:
-    rows = [(s.name, "" if s.value is None else s.value) for s in analysis.statistics]
+    rows = [(s.name, _number_text(s.value)) for s in analysis.statistics]
     return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+
+
+def _number_text(value: float | None) -> str:
+    """Counts print as whole numbers (60, not 60.0); other values at full precision."""
+    if value is None:
+        return ""
+    if isinstance(value, int) or float(value).is_integer():
+        return str(int(value))
+    return repr(float(value))
 
 
 def _plain_value(value: object) -> object | None:
