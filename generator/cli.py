@@ -67,7 +67,9 @@ def _run(argv: Sequence[str]) -> int:
     if not args.quiet:
         for finding in findings:
             _print_finding(finding)
-        print(f"ok: {len(study.networks)} network(s) checked, {len(findings)} finding(s), no errors")
+        nets, found = len(study.networks), len(findings)
+        print(f"ok: {nets} {'network' if nets == 1 else 'networks'} checked, {found} "
+              f"{'finding' if found == 1 else 'findings'}, no errors")
     return 0
 
 

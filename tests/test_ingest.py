@@ -75,7 +75,7 @@ def test_edge_to_unknown_node_is_added_and_reported_with_its_line(tmp_path):
     clean = load_network(root)
     finding = only(clean.checks.findings, "fix")
     assert (finding.file, finding.value, finding.count) == (EDGES, "q", 2)
-    assert finding.message == ("2 node(s) appear in ties but not in the node list data/nodes.csv; "
+    assert finding.message == ("2 nodes appear in ties but not in the node list data/nodes.csv; "
                                "added with no attributes: 'q' (line 3), 'r' (line 4)")
     assert list(clean.nodes.index) == ["a", "b", "q", "r"]
     assert clean.nodes.loc["q", "label"] == "q"  # no label: the id stands in
@@ -87,7 +87,7 @@ def test_isolates_in_the_node_list_are_kept_and_counted(tmp_path):
     clean = load_network(root)
     finding = only(clean.checks.findings, "note")
     assert (finding.file, finding.count) == (EDGES, 2)
-    assert finding.message == "2 isolate(s) with no ties, kept in the network: c, d"
+    assert finding.message == "2 isolates with no ties, kept in the network: c, d"
     assert list(clean.nodes.index) == ["a", "b", "c", "d"]
     measures = analyse(clean, runs=2).measures
     assert list(measures["degree"]) == [1, 1, 0, 0]
@@ -294,7 +294,7 @@ def test_self_loops_are_removed_and_counted_with_their_lines(tmp_path):
     assert edge_rows(clean) == [("a", "b")]
     finding = only(clean.checks.findings, "fix")
     assert (finding.file, finding.count, finding.value) == (EDGES, 2, "b")
-    assert finding.message == ("2 self-loop(s) removed (a tie from a node to itself) on line(s) "
+    assert finding.message == ("2 self-loops removed (a tie from a node to itself) on lines "
                                "2, 4")
     assert list(clean.nodes.index) == ["a", "b"]
 
@@ -303,7 +303,7 @@ def test_many_lines_are_listed_up_to_twenty_then_counted(tmp_path):
     edges = "source,target\n" + "a,a\n" * 25 + "a,b\n"
     finding = only(load_network(edge_study(tmp_path, edges)).checks.findings, "fix")
     assert finding.count == 25
-    assert finding.message.endswith("on line(s) " + ", ".join(str(i) for i in range(2, 22))
+    assert finding.message.endswith("on lines " + ", ".join(str(i) for i in range(2, 22))
                                     + " and 5 more")
 
 
@@ -334,7 +334,7 @@ def test_symmetric_zero_one_matrix_is_an_unweighted_undirected_network(tmp_path)
 def test_matrix_diagonal_is_removed_as_self_loops(tmp_path):
     clean = load_network(matrix_study(tmp_path, ",a,b\na,4,1\nb,1,0\n"))
     assert edge_rows(clean) == [("a", "b", 1.0)]
-    assert only(clean.checks.findings, "fix").message.endswith("on line(s) 2")
+    assert only(clean.checks.findings, "fix").message.endswith("on line 2")
 
 
 def test_asymmetric_undirected_matrix_names_the_first_asymmetric_cell(tmp_path):

@@ -142,7 +142,7 @@ def test_node_without_attribute_value_is_left_out_and_the_note_says_so(directed_
     _, analysis = directed_case
     team = statistic(analysis, "assortativity:team")
     assert team.value is not None
-    assert team.note == "(1 node(s) without a value left out)"
+    assert team.note == "(1 node without a value left out)"
 
 
 def test_weighted_path_statistics_name_their_unit(directed_case, distance_case, karate_case):

@@ -43,7 +43,7 @@ STATISTIC_INFO: dict[str, StatisticInfo] = {
                                 "The network falls into {value} separate part(s)."),
     "strong_components": StatisticInfo("Strong components", "Strongly connected components: sets in "
                                        "which every node reaches every other along tie directions.",
-                                       "{value} set(s) in which everyone can reach everyone."),
+                                       "{value} sets in which everyone can reach everyone."),
     "largest_component_share": StatisticInfo("Largest component share", "Nodes in the largest "
                                              "component / n.", "{percent} of nodes are in the "
                                              "largest connected part."),
@@ -95,10 +95,11 @@ class Statistic:
                     + self.name.split(":", 1)[1])
             if self.name == "degree_assortativity":
                 what = "of similar degree"
+            r = f"{v:.2f}".replace("-0.00", "0.00")
             if abs(v) < 0.05:
-                return f"Ties show no clear preference for nodes {what} (r = {v:.2f})."
+                return f"Ties show no clear preference for nodes {what} (r = {r})."
             side = "prefer" if v > 0 else "avoid"
-            return f"Ties {side} nodes {what} (r = {v:.2f})."
+            return f"Ties {side} nodes {what} (r = {r})."
         if self.name == "modularity":
             level = "strong" if v >= 0.4 else "moderate" if v >= 0.3 else "weak"
             return f"A {level} community structure (Q = {v:.2f}; above about 0.3 is usually read as clear)."
@@ -141,7 +142,8 @@ def _assortativity(graph: ig.Graph, values: pd.Series, name: str) -> Statistic:
     sub = graph.induced_subgraph(present) if len(present) < graph.vcount() else graph
     kept = [values.iloc[i] for i in present]
     left_out = graph.vcount() - len(present)
-    note = f" ({left_out} node(s) without a value left out)" if left_out else ""
+    note = (f" ({left_out} {'node' if left_out == 1 else 'nodes'} without a value left out)"
+            if left_out else "")
     if sub.ecount() == 0:
         return Statistic(name, None, "not defined: no ties among nodes with a value" + note)
     if len(set(kept)) < 2:

@@ -80,6 +80,10 @@ def _number(text: str) -> float | None:
         return None
 
 
+def _count(n: int, singular: str, plural: str) -> str:
+    return f"{n} {singular if n == 1 else plural}"
+
+
 def _lines(lines: list[int]) -> str:
     shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
     return shown + (f" and {len(lines) - MAX_LINES_LISTED} more" if len(lines) > MAX_LINES_LISTED else "")
@@ -256,8 +260,9 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
                 weighted: bool, checks: DataChecks) -> pd.DataFrame:
     loops = [t for t in ties if t.source == t.target]
     if loops:
-        checks.add(Finding("fix", name, f"{len(loops)} self-loop(s) removed (a tie from a node to "
-                           f"itself) on line(s) {_lines([t.line for t in loops])}",
+        checks.add(Finding("fix", name, f"{_count(len(loops), 'self-loop', 'self-loops')} removed (a tie from a "
+                           f"node to itself) on {'line' if len(loops) == 1 else 'lines'} "
+                           f"{_lines([t.line for t in loops])}",
                            line=loops[0].line if len(loops) == 1 else None,
                            value=loops[0].source, count=len(loops)))
     kept = [t for t in ties if t.source != t.target]
@@ -316,8 +321,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                 unknown[node] = tie.line
     if unknown:
         shown = ", ".join(f"{n!r} (line {line})" for n, line in list(unknown.items())[:MAX_LINES_LISTED])
-        checks.add(Finding("fix", data_name, f"{len(unknown)} node(s) appear in ties but not in the "
-                           f"node list {study.relative(net.nodes)}; added with no attributes: {shown}",
+        checks.add(Finding("fix", data_name, f"{_count(len(unknown), 'node appears', 'nodes appear')} in ties "
+                           f"but not in the node list {study.relative(net.nodes)}; added with no attributes: {shown}",
                            line=next(iter(unknown.values())) if len(unknown) == 1 else None,
                            value=next(iter(unknown)), count=len(unknown)))
 
@@ -346,7 +351,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     touched = set(edges["source"]) | set(edges["target"])
     isolates = [n for n in all_ids if n not in touched]
     if isolates:
-        checks.add(Finding("note", data_name, f"{len(isolates)} isolate(s) with no ties, kept in "
+        checks.add(Finding("note", data_name, f"{_count(len(isolates), 'isolate', 'isolates')} with no ties, kept in "
                            f"the network: {', '.join(isolates[:MAX_LINES_LISTED])}",
                            count=len(isolates)))
     _check_display_settings(net, attribute_names, study)
