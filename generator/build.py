@@ -99,18 +99,11 @@ def _build_info() -> dict[str, str]:
 def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> StudyConfig:
     """Validate config and data without building; pass every finding to ``report``."""
     study = load_study(project)
-    errors: list[Finding] = []
-    for net in study.networks:
-        try:
-            clean = read_network(study, net)
-        except DataError as exc:
-            errors += exc.findings
-            continue
+    cleaned = _read_all(study, Progress(quiet=True))  # raises with the errors of every network
+    for clean in cleaned:
         for finding in clean.checks.findings:
             report(finding)
     _read_notes(study)
-    if errors:
-        raise DataError(errors)
     return study
 
 
