@@ -48,6 +48,10 @@ class BuildResult:
     networks: list[NetworkAnalysis] = field(default_factory=list)
 
 
+def _n(count: int, singular: str, plural: str | None = None) -> str:
+    return f"{count} {singular if count == 1 else plural or singular + 's'}"
+
+
 def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
     """Read every network, collecting the errors of all of them before giving up."""
     cleaned, errors = [], []
@@ -59,8 +63,8 @@ def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
             continue
         cleaned.append(clean)
         fixes = sum(1 for f in clean.checks.findings if f.level == "fix")
-        progress.stage("ingest", f"{net.id}: {len(clean.nodes)} nodes, {len(clean.edges)} ties, "
-                       f"{fixes} fix(es)")
+        progress.stage("ingest", f"{net.id}: {_n(len(clean.nodes), 'node')}, "
+                       f"{_n(len(clean.edges), 'tie')}, {_n(fixes, 'fix', 'fixes')}")
     if errors:
         raise DataError(errors)
     return cleaned
@@ -114,7 +118,7 @@ def build_study(project: Path | str, *, output: Path | None = None,
     study = load_study(project)
     if output is not None:
         study = _with_output(study, output)
-    progress.stage("config", f"read {study.study_file.name}: {len(study.networks)} network(s)")
+    progress.stage("config", f"read {study.study_file.name}: {_n(len(study.networks), 'network')}")
     cleaned = _read_all(study, progress)
     notes, summary = _read_notes(study)
 
@@ -123,8 +127,8 @@ def build_study(project: Path | str, *, output: Path | None = None,
         analysis = analyse_network(clean, communities=study.communities, measures=study.measures,
                                    seed=study.seed)
         analyses.append(analysis)
-        progress.stage("analyse", f"{clean.id}: {len(analysis.measures.columns)} measures, "
-                       f"{analysis.communities.count} communities")
+        progress.stage("analyse", f"{clean.id}: {_n(len(analysis.measures.columns), 'measure')}, "
+                       f"{_n(analysis.communities.count, 'community', 'communities')}")
 
     inputs = []
     files: dict[str, bytes] = {}
@@ -135,7 +139,7 @@ def build_study(project: Path | str, *, output: Path | None = None,
             base = f"networks/{analysis.network_id}/figures/{figure.name}"
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
-        progress.stage("draw", f"{analysis.network_id}: {len(figures)} figures")
+        progress.stage("draw", f"{analysis.network_id}: {_n(len(figures), 'figure')}")
 
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=_build_info())
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
