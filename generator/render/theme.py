@@ -28,7 +28,12 @@ _THEME_KEY = "site.theme"
 
 
 def _packaged_root() -> Traversable:
-    return resources.files("generator.themes")
+    """The themes folder: inside the installed package (``generator.themes``), or, when the code
+    runs straight from a source checkout, the ``themes/`` folder beside ``generator/``."""
+    try:
+        return resources.files("generator.themes")
+    except ModuleNotFoundError:
+        return Path(__file__).resolve().parents[2] / "themes"
 
 
 def packaged_themes() -> list[str]:
