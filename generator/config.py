@@ -238,6 +238,15 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     if matrix is not None and (weight is not None or "source" in data or "target" in data):
         raise ConfigError("'weight', 'source' and 'target' name edge-list columns; an adjacency "
                           "matrix has none (its cells are the weights)", key=dotted)
+    source, target = t.get("source", str, "source"), t.get("target", str, "target")
+    if source == target:
+        raise ConfigError(f"'source' and 'target' both name the column '{source}'; every tie would "
+                          "be a self-loop", key=f"{dotted}.target")
+    if weight is not None and weight in (source, target):
+        raise ConfigError(f"'weight' names the node column '{weight}'", key=f"{dotted}.weight")
+    title = t.get("title", str, net_id)
+    if not title.strip():
+        raise ConfigError("may not be empty", key=f"{dotted}.title")
     wave = t.get("wave", int)
     series = t.get("series", str)
     if wave is not None and series is None:
@@ -250,14 +259,14 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
                           f"{hint}", key=f"{dotted}.size_by")
     return NetworkConfig(
         id=net_id,
-        title=t.get("title", str, net_id),
+        title=title.strip(),
         edges=_existing_file(root, edges, f"{dotted}.edges") if edges else None,
         matrix=_existing_file(root, matrix, f"{dotted}.matrix") if matrix else None,
         nodes=_existing_file(root, nodes, f"{dotted}.nodes") if nodes else None,
         node_id=t.get("node_id", str, "id"),
         label=t.get("label", str),
-        source=t.get("source", str, "source"),
-        target=t.get("target", str, "target"),
+        source=source,
+        target=target,
         directed=t.get("directed", bool, False),
         weight=weight,
         weight_means=t.choice("weight_means", WEIGHT_MEANINGS, "strength"),
@@ -279,7 +288,7 @@ def load_study(project: Path | str) -> StudyConfig:
     root = Path(project).resolve()
     path = root / STUDY_FILE
     if not path.is_file():
-        raise ConfigError(f"no {STUDY_FILE} in {root}; run 'netfolio init DIR' to start a study")
+        raise ConfigError(f"no {STUDY_FILE} in {root}; a study folder needs one (see the README's study.toml reference)")
     try:
         raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
     except UnicodeDecodeError as exc:
@@ -340,9 +349,12 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         raise ConfigError(f"the output folder '{output_raw}' may not hold the notes folder",
                           key="study.output")
 
+    title = s.get("title", str, required=True)
+    if not title.strip():
+        raise ConfigError("may not be empty", key="study.title")
     return StudyConfig(
         root=root,
-        title=s.get("title", str, required=True),
+        title=title.strip(),
         summary=summary_path,
         seed=s.get("seed", int, DEFAULT_SEED),
         output=output,

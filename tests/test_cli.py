@@ -135,3 +135,11 @@ def test_python_dash_m_generator_runs_and_an_unknown_folder_exits_1(tmp_path: Pa
                          capture_output=True, text=True)
     assert run.returncode == 1
     assert "no study.toml" in run.stderr and "Traceback" not in run.stderr
+
+
+def test_dollar_signs_in_labels_and_titles_are_text_not_mathematics(tmp_path: Path) -> None:
+    toml = STUDY.replace('id = "ties"', 'id = "ties"\ntitle = "Spend $5 vs $10 per month"')
+    study = make_study(tmp_path / "study", toml=toml, nodes=NODES.replace("Ana Sol", "Pay $_$"))
+    assert main(["build", str(study), "--quiet"]) == 0
+    svg = (study / "output/networks/ties/figures/degree.svg").read_text("utf-8")
+    assert "Spend $5 vs $10 per month" in svg

@@ -169,7 +169,7 @@ def test_study_without_networks_is_refused(tmp_path):
 
 def test_missing_study_file_points_to_init(tmp_path):
     error = config_error(tmp_path)
-    assert "no study.toml" in str(error) and "netfolio init" in str(error)
+    assert "no study.toml" in str(error) and "study.toml reference" in str(error)
 
 
 def test_invalid_toml_is_a_config_error_naming_the_file(tmp_path):
@@ -357,3 +357,24 @@ def test_output_folder_holding_the_summary_note_is_refused(tmp_path):
     root = study_with(tmp_path, study={"title": "T", "summary": "site/index.md", "output": "site"},
                       files={"site/index.md": "# Front page\n"})
     assert config_error(root).key == "study.output"
+
+
+def test_source_and_target_must_be_different_columns(tmp_path):
+    root = study_with(tmp_path, networks=[net(source="from", target="from")])
+    error = config_error(root)
+    assert error.key == "network[1].target" and "self-loop" in str(error)
+
+
+def test_weight_may_not_name_a_node_column(tmp_path):
+    root = study_with(tmp_path, networks=[net(weight="source")])
+    assert config_error(root).key == "network[1].weight"
+
+
+@pytest.mark.parametrize(("where", "key"), [("study", "study.title"), ("network", "network[1].title")])
+def test_an_empty_title_is_refused(tmp_path, where, key):
+    if where == "study":
+        root = study_with(tmp_path, study={"title": "  "})
+    else:
+        root = study_with(tmp_path, networks=[net(title="")])
+    error = config_error(root)
+    assert error.key == key and "may not be empty" in str(error)

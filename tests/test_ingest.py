@@ -463,3 +463,43 @@ def test_node_order_is_the_same_in_every_process(tmp_path):
                               env={"PYTHONHASHSEED": str(hash_seed), "PATH": ""}, check=True)
         orders.add(done.stdout.strip())
     assert len(orders) == 1, orders
+
+
+# --- Odd but realistic input found in review --------------------------------------------------
+
+
+def test_label_may_be_the_id_column_itself(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source,target\na,b\n", nodes="id,team\na,x\nb,y\n",
+                                    label="id"))
+    assert list(clean.nodes["label"]) == ["a", "b"]
+    assert clean.attributes == ("team",)
+
+
+def test_codes_with_leading_zeros_stay_text_and_plain_numbers_become_numbers(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source,target\na,b\n",
+                                    nodes="id,zip,year,share\na,01234,2015,0.5\nb,20000,2016,1\n"))
+    assert list(clean.nodes["zip"]) == ["01234", "20000"]
+    assert list(clean.nodes["year"]) == [2015, 2016]
+    assert pd.api.types.is_integer_dtype(clean.nodes["year"].dtype)
+    assert pd.api.types.is_float_dtype(clean.nodes["share"].dtype)
+
+
+@pytest.mark.parametrize("text", ["1_000", "\u0663", "1,5", "0x10", "1.2.3"])
+def test_weights_must_be_plain_decimal_numbers(tmp_path, text):
+    edges = f'source,target,w\na,b,"{text}"\n'
+    (finding,) = data_error(edge_study(tmp_path, edges, weight="w")).findings
+    assert (finding.line, finding.column, finding.value) == (2, "w", text)
+    assert finding.message == "weight is not a number"
+
+
+def test_a_repeated_column_name_is_refused(tmp_path):
+    (finding,) = data_error(edge_study(tmp_path, "source,target,source\na,b,c\n")).findings
+    assert (finding.file, finding.line, finding.column) == (EDGES, 1, "source")
+    assert "repeated in the header row" in finding.message
+
+
+def test_an_id_with_a_line_break_is_refused_but_a_quoted_note_may_span_lines(tmp_path):
+    (finding,) = data_error(edge_study(tmp_path / "a", 'source,target\n"a\nb",c\n')).findings
+    assert (finding.line, finding.column, finding.value) == (2, "source", "a\nb")
+    clean = load_network(edge_study(tmp_path / "b", 'source,target,note\na,b,"two\nlines"\n'))
+    assert len(clean.edges) == 1

@@ -59,6 +59,8 @@ SEQUENTIAL_COLORMAP = "viridis"
 # coordinate) do not depend on the fonts of the machine.
 _RC = {
     "svg.hashsalt": "netfolio",
+    # Labels and titles come from the data: "$5 vs $10" is text, not mathematics.
+    "text.parse_math": False,
     "svg.fonttype": "none",
     "svg.image_inline": True,
     "font.family": ["sans-serif"],

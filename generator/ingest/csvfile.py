@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -24,6 +25,17 @@ class Table:
     def column(self, name: str) -> int:
         return self.header.index(name)
 
+    def refuse_control_characters(self, *names: str | None) -> None:
+        """Ids, labels and numbers must be one plain line (a quoted note may span lines)."""
+        columns = [self.column(n) for n in names if n is not None and n in self.header]
+        for row, line in zip(self.rows, self.lines):
+            for i in columns:
+                if _CONTROL.search(row[i]):
+                    raise DataError(Finding(
+                        "error", self.name, "a value holds a line break or another control "
+                        "character; ids, labels and numbers must be plain text on one line",
+                        line=line, column=self.header[i], value=row[i]))
+
     def require(self, *names: str, what: str) -> None:
         """Refuse the file unless every named column is present, listing the ones that are."""
         missing = [n for n in names if n not in self.header]
@@ -34,7 +46,10 @@ class Table:
                 f"{present} (set the column name in study.toml)", line=1, column=missing[0]))
 
 
-def read_table(path: Path, name: str) -> Table:
+_CONTROL = re.compile(r"[\x00-\x1f\x7f]")
+
+
+def read_table(path: Path, name: str, *, allow_no_rows: bool = False) -> Table:
     """Read ``path`` as UTF-8 CSV (a byte-order mark is allowed); every value stays text.
 
     Ids such as "007" must survive as written, so nothing is converted here.
@@ -64,11 +79,18 @@ def read_table(path: Path, name: str) -> Table:
         raise DataError(Finding("error", name, f"is not valid CSV: {exc}", line=reader.line_num)) from None
     if header is None or not any(header):
         raise DataError(Finding("error", name, "is empty; it needs a header row and data rows"))
-    if not rows:
+    if not rows and not allow_no_rows:
         raise DataError(Finding("error", name, "has a header row but no data rows", line=1))
+    seen = set()
+    for column in header:
+        if column in seen:
+            raise DataError(Finding("error", name, "a column name is repeated in the header row",
+                                    line=1, column=column, value=column))
+        seen.add(column)
     for row, line in zip(rows, lines):
         if len(row) != len(header):
             raise DataError(Finding(
                 "error", name, f"has {len(row)} values where the header has {len(header)} columns",
                 line=line, value=",".join(row)))
+
     return Table(name, header, tuple(rows), tuple(lines))

@@ -73,11 +73,15 @@ class CleanNetwork:
         return self.config.directed
 
 
+# Plain decimal numbers only: Python's float() would also take "1_000" and non-Latin digits.
+_NUMBER = re.compile(r"[+-]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][+-]?[0-9]+)?")
+_SPECIAL = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "nan"}
+
+
 def _number(text: str) -> float | None:
-    try:
+    if _NUMBER.fullmatch(text) or text.lower() in _SPECIAL:
         return float(text)
-    except ValueError:
-        return None
+    return None
 
 
 def _count(n: int, singular: str, plural: str) -> str:
@@ -96,8 +100,9 @@ def _lines(lines: list[int]) -> str:
 def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.DataFrame:
     table = read_table(net.nodes, name)  # type: ignore[arg-type]
     table.require(net.node_id, what="node list")
-    if net.label is not None:
+    if net.label is not None and net.label != net.node_id:
         table.require(net.label, what="node list")
+    table.refuse_control_characters(net.node_id, net.label)
     id_col = table.column(net.node_id)
     first_line: dict[str, int] = {}
     for row, line in zip(table.rows, table.lines):
@@ -117,13 +122,19 @@ def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.Dat
     return frame
 
 
+_CANONICAL_NUMBER = r"-?(0|[1-9][0-9]*)(\.[0-9]+)?"
+
+
 def _typed_attributes(frame: pd.DataFrame) -> pd.DataFrame:
     """Empty cells become missing; a column whose filled cells are all numbers becomes numeric."""
     typed = {}
     for column in frame.columns:
         text = frame[column].astype("string").str.strip().replace("", pd.NA)
-        numbers = pd.to_numeric(text, errors="coerce")
-        if text.notna().any() and numbers.notna().sum() == text.notna().sum():
+        filled = text.dropna()
+        # "01234" is a code, not a number: only columns of plainly written numbers become numeric.
+        canonical = filled.str.fullmatch(_CANONICAL_NUMBER).all() if len(filled) else False
+        numbers = pd.to_numeric(text, errors="coerce") if canonical else text
+        if canonical and numbers.notna().sum() == text.notna().sum():
             all_whole = ((numbers.dropna() % 1) == 0).all()
             typed[column] = numbers.astype("Int64") if all_whole else numbers.astype("Float64")
         else:
@@ -166,6 +177,7 @@ def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_
     table = read_table(net.edges, name)  # type: ignore[arg-type]
     columns = [net.source, net.target] + ([net.weight] if net.weight else [])
     table.require(*columns, what="edge list")
+    table.refuse_control_characters(*columns)
     s, t = table.column(net.source), table.column(net.target)
     w = table.column(net.weight) if net.weight else None
     ties = []
@@ -203,12 +215,9 @@ def _zero_weight_reason(net: NetworkConfig) -> str:
 def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[list[_RawTie], list[str], bool]:
     """Rows are senders (source), columns receivers (target); a cell is the tie's weight."""
     table = read_table(net.matrix, name)  # type: ignore[arg-type]
+    table.refuse_control_characters(*table.header)
     col_labels = list(table.header[1:])
     row_labels = [row[0] for row in table.rows]
-    if len(set(col_labels)) != len(col_labels):
-        dup = next(x for x in col_labels if col_labels.count(x) > 1)
-        raise DataError(Finding("error", name, "a column label is repeated in the header row",
-                                line=1, value=dup))
     if sorted(row_labels) != sorted(col_labels):
         only_rows = sorted(set(row_labels) - set(col_labels))
         only_cols = sorted(set(col_labels) - set(row_labels))
@@ -340,7 +349,9 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                                           if net.nodes else data_name, checks)
     attrs = _typed_attributes(node_frame)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
-    if label_column:
+    if label_column == net.node_id:
+        labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
+    elif label_column:
         labels = node_frame[label_column].astype("string").str.strip().replace("", pd.NA)
     else:
         labels = pd.Series(pd.NA, index=attrs.index, dtype="string")

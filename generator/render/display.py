@@ -36,7 +36,7 @@ def significant(value: float, digits: int = DEFAULT_DIGITS) -> str:
     if math.isinf(value):
         return "\u221e" if value > 0 else "-\u221e"
     if float(value).is_integer() and abs(value) < 1e15:
-        return f"{int(value):,}"
+        return str(int(value))  # no separators: years and codes (2015, 1234) read as written
     rounded = float(f"{value:.{digits}g}")  # round first, so 9.99996 becomes 10 before formatting
     if rounded == 0:
         return "0"
