@@ -18,8 +18,9 @@ from .config import StudyConfig, load_study
 from .draw import draw_network
 from .errors import ConfigError, DataError, Finding
 from .ingest import CleanNetwork, read_network
-from .publish import datapackage_json, network_files, write_site
+from .publish import check_output_folder, datapackage_json, network_files, write_site
 from .render import NetworkPageInput, render_site
+from .render.theme import load_theme
 
 __all__ = ["BuildResult", "Progress", "build_study", "check_study"]
 
@@ -107,8 +108,15 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
     for clean in cleaned:
         for finding in clean.checks.findings:
             report(finding)
-    _read_notes(study)
+    notes, _ = _read_notes(study)
+    load_theme(study)  # an unknown theme fails here as it would in build
+    check_output_folder(study.output, _input_files(study, cleaned, notes))
     return study
+
+
+def _input_files(study: StudyConfig, cleaned: list[CleanNetwork], notes: dict[str, str]) -> list[Path]:
+    files = [p for c in cleaned for p in c.files] + [study.study_file]
+    return files + [study.root / "notes" / f"{stem}.md" for stem in notes]
 
 
 def build_study(project: Path | str, *, output: Path | None = None,
@@ -148,9 +156,7 @@ def build_study(project: Path | str, *, output: Path | None = None,
     for analysis in analyses:
         files.update(network_files(analysis))
     files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
-    input_files = [p for c in cleaned for p in c.files] + [study.study_file]
-    input_files += [study.root / "notes" / f"{stem}.md" for stem in notes]
-    count = write_site(study.output, files, inputs=input_files)
+    count = write_site(study.output, files, inputs=_input_files(study, cleaned, notes))
     size = sum(len(b) for b in files.values())
     progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
     return BuildResult(study=study, output=study.output, files=count, networks=analyses)

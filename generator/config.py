@@ -257,6 +257,13 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         hint = f"; did you mean '{close[0]}'?" if close else ""
         raise ConfigError(f"'{size_by}' is not a node measure; use one of {', '.join(SIZE_MEASURES)}"
                           f"{hint}", key=f"{dotted}.size_by")
+    directed = t.get("directed", bool, False)
+    if size_by is not None and not directed and size_by.startswith(("in_", "out_")):
+        raise ConfigError(f"'{size_by}' applies only to directed networks; use "
+                          f"'{size_by.split('_', 1)[1]}'", key=f"{dotted}.size_by")
+    if size_by is not None and edges is not None and weight is None and "strength" in size_by:
+        raise ConfigError(f"'{size_by}' needs a weight column; this network is unweighted, use "
+                          f"'{size_by.replace('strength', 'degree')}'", key=f"{dotted}.size_by")
     return NetworkConfig(
         id=net_id,
         title=title.strip(),
@@ -267,7 +274,7 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         label=t.get("label", str),
         source=source,
         target=target,
-        directed=t.get("directed", bool, False),
+        directed=directed,
         weight=weight,
         weight_means=t.choice("weight_means", WEIGHT_MEANINGS, "strength"),
         duplicates=t.choice("duplicates", DUPLICATE_RULES, "sum"),

@@ -143,3 +143,14 @@ def test_dollar_signs_in_labels_and_titles_are_text_not_mathematics(tmp_path: Pa
     assert main(["build", str(study), "--quiet"]) == 0
     svg = (study / "output/networks/ties/figures/degree.svg").read_text("utf-8")
     assert "Spend $5 vs $10 per month" in svg
+
+
+def test_check_finds_what_build_would_refuse_about_the_output_and_theme(tmp_path: Path, capsys) -> None:
+    study = make_study(tmp_path / "study")
+    (study / "output").write_text("a file where the site should go")
+    assert main(["check", str(study)]) == 1
+    assert "is a file, not a folder" in capsys.readouterr().err
+    (study / "output").unlink()
+    (study / "study.toml").write_text(STUDY + '\n[site]\ntheme = "defualt"\n')
+    assert main(["check", str(study)]) == 1
+    assert "did you mean 'default'" in capsys.readouterr().err

@@ -265,6 +265,7 @@ def test_statistic_readings_fill_in_the_value(tmp_path):
     ring = csv_text(("source", "target"), [(f"r{i}", f"r{(i + 1) % 5}") for i in range(5)])
     analysis = _analysis(tmp_path, ring)
     assert statistic(analysis, "density").reading() == "50% of all possible ties are present."
-    assert statistic(analysis, "nodes").reading() == "5 people or units are in the network."
+    assert statistic(analysis, "nodes").reading() == "5 nodes are in the network."
+    assert statistic(analysis, "edges").reading() == "5 distinct ties remain after cleaning."
     assert statistic(analysis, "diameter").reading() == (
         "The farthest two connected nodes are 2 apart (in ties).")

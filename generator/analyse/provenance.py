@@ -5,8 +5,10 @@ from __future__ import annotations
 import platform
 
 import igraph
+import matplotlib
 import networkx
 import numpy
+import pandas
 
 from .. import __version__
 
@@ -20,4 +22,6 @@ def library_versions() -> dict[str, str]:
         "igraph": igraph.__version__,
         "networkx": networkx.__version__,
         "numpy": numpy.__version__,
+        "pandas": pandas.__version__,
+        "matplotlib": matplotlib.__version__,
     }

@@ -23,10 +23,9 @@ class StatisticInfo:
 
 
 STATISTIC_INFO: dict[str, StatisticInfo] = {
-    "nodes": StatisticInfo("Nodes", "Number of nodes n, isolates included.",
-                           "{value} people or units are in the network."),
+    "nodes": StatisticInfo("Nodes", "Number of nodes n, isolates included.", ""),
     "edges": StatisticInfo("Ties", "Number of ties m after cleaning (repeats merged, self-loops "
-                           "removed).", "{value} distinct ties were recorded."),
+                           "removed).", ""),
     "density": StatisticInfo("Density", "m / (n(n-1)/2) undirected, m / (n(n-1)) directed.",
                              "{percent} of all possible ties are present.", ("wasserman1994",)),
     "reciprocity": StatisticInfo("Reciprocity", "Share of directed ties whose reverse tie exists.",
@@ -36,7 +35,8 @@ STATISTIC_INFO: dict[str, StatisticInfo] = {
                                   "are tied to each other {percent} of the time.", ("wasserman1994",)),
     "average_clustering": StatisticInfo("Average clustering", "Mean local clustering over all "
                                         "nodes (0 for nodes with fewer than two neighbours).",
-                                        "On average {percent} of a node's contacts know each other.",
+                                        "On average {percent} of the pairs of a node's contacts are "
+                                        "tied to each other.",
                                         ("watts1998",)),
     "components": StatisticInfo("Components", "Connected components (weakly connected when "
                                 "directed); isolates count as components.",
@@ -108,11 +108,14 @@ class Statistic:
 
 
 _COUNTED = {
+    "nodes": ("One node is in the network.", "{value} nodes are in the network."),
+    "edges": ("One distinct tie remains after cleaning.",
+              "{value} distinct ties remain after cleaning."),
     "components": ("The network is one connected whole.",
                    "The network falls into {value} separate parts."),
     "strong_components": ("Everyone can reach everyone along tie directions.",
                           "{value} sets within which everyone can reach everyone along tie "
-                          "directions."),
+                          "directions (single nodes count as sets)."),
     "communities": ("One community was found.", "{value} communities were found."),
 }
 

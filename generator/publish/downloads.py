@@ -30,7 +30,10 @@ def nodes_csv(analysis: NetworkAnalysis) -> bytes:
 
 
 def edges_csv(analysis: NetworkAnalysis) -> bytes:
-    return _csv(analysis.edges)
+    edges = analysis.edges
+    if "weight" in edges and (edges["weight"] % 1 == 0).all():
+        edges = edges.assign(weight=edges["weight"].astype("int64"))  # counts as written: 4, not 4.0
+    return _csv(edges)
 
 
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:

@@ -21,7 +21,8 @@ from markupsafe import Markup
 __all__ = ["MARKDOWN_EXTENSIONS", "RenderedNote", "render_markdown"]
 
 MARKDOWN_EXTENSIONS = ("tables", "fenced_code")
-# Schemes that run code when a reader follows the link; dropped even when raw HTML is allowed.
+# Schemes that run code when a reader follows the link; dropped from markdown links and images.
+# Raw HTML, when [site] allow_html lets it through, is the study author's own and kept as written.
 _UNSAFE_SCHEME = re.compile(r"^\s*(javascript|vbscript|data)\s*:", re.IGNORECASE)
 _CONTROL = re.compile(r"[\x00-\x20]+")
 _TAG = re.compile(r"<[^>]*>")
