@@ -51,8 +51,10 @@ MEASURE_INFO: dict[str, MeasureInfo] = {
         "that cannot reach it), divided by n-1.", ("marchiori2000", "boldi2014"), "length"),
     "eigenvector": MeasureInfo(
         "Eigenvector", "Leading eigenvector of the tie-strength matrix, scaled so the largest value "
-        "is 1. Directed: a node scores high when high-scoring nodes point to it; computed only when "
-        "the network is strongly connected.", ("bonacich1972",), "strength"),
+        "is 1. Directed: a node scores high when high-scoring nodes point to it. Computed only when "
+        "it is defined for the whole network: a directed network must be strongly connected, and "
+        "the ties of an undirected one must form a single component (isolates then score 0).",
+        ("bonacich1972",), "strength"),
     "pagerank": MeasureInfo(
         "PageRank", "Stationary share of a random walk that follows ties in proportion to their "
         "strength and jumps to a random node with probability 0.15 (damping 0.85); nodes with no "

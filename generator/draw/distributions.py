@@ -143,6 +143,8 @@ def _centrality_alt(analysis: NetworkAnalysis, measure: str, values: np.ndarray)
 def _centrality_caption(analysis: NetworkAnalysis, measure: str) -> str:
     text = (_MEANING[measure] + " Each bar counts the nodes in its range; the dashed line marks "
             "the median.")
+    if analysis.directed and measure in ("closeness", "harmonic"):
+        text += " In this directed network paths run along tie directions to the node."
     if analysis.weighted and measure in ("closeness", "harmonic"):
         reading = "1/weight" if analysis.weight_means == "strength" else "the weight"
         text += (f" Path lengths here are {reading} per tie, so values above 1 are possible and "

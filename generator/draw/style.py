@@ -41,7 +41,9 @@ OKABE_ITO = ("#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "
 OTHER_GREY = "#9A9A9A"  # the groups beyond the seventh, merged
 MISSING_GREY = "#E4E4E4"  # nodes with no value; drawn with a darker rim so they stay visible
 MISSING_EDGE = "#8A8A8A"
-NODE_EDGE = "#FFFFFF"
+# A dark rim keeps light fills (yellow, sky blue) above 3:1 contrast against the white page
+# (WCAG 2.1, 1.4.11 non-text contrast) and separates overlapping nodes.
+NODE_EDGE = "#404040"
 TIE_GREY = "#C4C4C4"
 BAR_COLOUR = "#3B6F8F"  # one quiet blue for charts where colour carries no category
 INK = "#262626"

@@ -93,11 +93,15 @@
       return;
     }
     var rows = Array.prototype.slice.call(table.tBodies[0].rows);
+    // Compare without case or accents, so "zoe" finds "Zoë".
+    function plain(text) {
+      return text.normalize("NFD").replace(/[\u0300-\u036f]/g, "").toLowerCase();
+    }
     var texts = rows.map(function (row) {
-      return row.textContent.toLowerCase();
+      return plain(row.textContent);
     });
     input.addEventListener("input", function () {
-      var query = input.value.trim().toLowerCase();
+      var query = plain(input.value.trim());
       var shown = 0;
       rows.forEach(function (row, i) {
         var match = query === "" || texts[i].indexOf(query) !== -1;
