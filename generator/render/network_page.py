@@ -40,6 +40,7 @@ class RankedNode:
     rank: int  # competition ranking: equal values share a rank ("1, 2, 2, 4")
     label: str
     value: str
+    node_id: str = ""  # shown beside the label when they differ, so equal names stay apart
 
 
 @dataclass(frozen=True)
@@ -163,7 +164,7 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
     )
 
 
-def _ranked(values: list[float], labels: list[str], count: int
+def _ranked(values: list[float], labels: list[str], ids: list[str], count: int
             ) -> tuple[tuple[RankedNode, ...], int]:
     order = sorted((i for i, v in enumerate(values) if not math.isnan(v)),
                    key=lambda i: (-values[i], i))  # ties keep node order
@@ -172,7 +173,8 @@ def _ranked(values: list[float], labels: list[str], count: int
     for position, i in enumerate(order[:count], start=1):
         if position == 1 or values[i] != values[order[position - 2]]:
             rank = position
-        rows.append(RankedNode(rank, labels[i], shown(values[i])))
+        rows.append(RankedNode(rank, labels[i], shown(values[i]),
+                               ids[i] if ids[i] != labels[i] else ""))
     more = 0
     if len(order) > count:
         last = values[order[count - 1]]
@@ -183,13 +185,14 @@ def _ranked(values: list[float], labels: list[str], count: int
 def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTable, ...]:
     """The ``count`` highest nodes for every measure present (community numbers are not ranked)."""
     labels = analysis.labels
+    ids = [str(node) for node in analysis.nodes.index]
     measures = analysis.measures.reindex(analysis.nodes.index)
     tables = []
     for column in measures.columns:
         if column == "community":
             continue
         values = [float(v) if not is_missing(v) else math.nan for v in measures[column].tolist()]
-        rows, more = _ranked(values, labels, count)
+        rows, more = _ranked(values, labels, ids, count)
         tables.append(TopTable(column, measure_title(column), rows, more))
     return tuple(tables)
 
