@@ -152,3 +152,13 @@ def test_cli_build_prints_a_progress_line_per_stage(tmp_path: Path, capsys: pyte
         assert re.search(rf"^{stage}\s+.*\(\d+\.\d\d s\)$", err, re.M), stage
     assert main(["build", str(study), "--quiet"]) == 0
     assert capsys.readouterr().err == ""
+
+
+def test_top_node_tables_show_the_id_beside_the_label(site: Path) -> None:
+    page = (site / "networks/advice/index.html").read_text("utf-8")
+    top = page[page.index('id="top-pagerank"'):]
+    top = top[:top.index("</table>")]
+    # the node with the highest PageRank, read from nodes.csv
+    rows = list(csv.DictReader(io.StringIO((site / "files/advice/nodes.csv").read_text("utf-8"))))
+    best = max(rows, key=lambda r: float(r["pagerank"]))
+    assert f'{best["label"]} <span class="node-id">{best["id"]}</span>' in top
