@@ -110,7 +110,7 @@ def test_check_prints_every_finding_without_building(tmp_path: Path, capsys) -> 
     assert main(["check", str(study)]) == 0
     out = capsys.readouterr().out
     assert "self-loop" in out and "line 6" in out
-    assert "'z' (line 7)" in out
+    assert "line 7: node 'z' appears in ties" in out
     assert "repeated ties" in out
     assert not (study / "output").exists()
 
@@ -154,3 +154,20 @@ def test_check_finds_what_build_would_refuse_about_the_output_and_theme(tmp_path
     (study / "study.toml").write_text(STUDY + '\n[site]\ntheme = "defualt"\n')
     assert main(["check", str(study)]) == 1
     assert "did you mean 'default'" in capsys.readouterr().err
+
+
+def test_asymmetric_undirected_matrix_exits_1_naming_the_cell_and_leaves_site_untouched(
+        tmp_path: Path, capsys) -> None:
+    study = tmp_path / "study"
+    (study / "data").mkdir(parents=True)
+    (study / "study.toml").write_text('[study]\ntitle = "M"\n\n[[network]]\nid = "m"\n'
+                                      'matrix = "data/m.csv"\n')
+    (study / "data" / "m.csv").write_text(",a,b,c\na,0,1,0\nb,1,0,1\nc,0,1,0\n")
+    assert main(["build", str(study), "--quiet"]) == 0
+    before = snapshot(study / "output")
+    (study / "data" / "m.csv").write_text(",a,b,c\na,0,1,0\nb,1,0,2\nc,0,1,0\n")
+    assert main(["build", str(study)]) == 1
+    err = capsys.readouterr().err
+    assert "data/m.csv, line 3, column 'c'" in err and "not symmetric" in err and "(value: '2')" in err
+    assert "Traceback" not in err
+    assert snapshot(study / "output") == before

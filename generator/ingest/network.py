@@ -328,12 +328,17 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
         for node in (tie.source, tie.target):
             if node_frame is not None and node not in known and node not in unknown:
                 unknown[node] = tie.line
-    if unknown:
-        shown = ", ".join(f"{n!r} (line {line})" for n, line in list(unknown.items())[:MAX_LINES_LISTED])
-        checks.add(Finding("fix", data_name, f"{_count(len(unknown), 'node appears', 'nodes appear')} in ties "
-                           f"but not in the node list {study.relative(net.nodes)}; added with no attributes: {shown}",
-                           line=next(iter(unknown.values())) if len(unknown) == 1 else None,
-                           value=next(iter(unknown)), count=len(unknown)))
+    if len(unknown) == 1:
+        ((node, line),) = unknown.items()
+        checks.add(Finding("fix", data_name, f"node {node!r} appears in ties but not in the node "
+                           f"list {study.relative(net.nodes)}; added with no attributes",
+                           line=line, value=node))
+    elif unknown:
+        first = list(unknown.items())[:MAX_LINES_LISTED]
+        shown = ", ".join(f"{n!r} (line {line})" for n, line in first)
+        checks.add(Finding("fix", data_name, f"{len(unknown)} nodes appear in ties but not in the "
+                           f"node list {study.relative(net.nodes)}; added with no attributes: "
+                           f"{shown}", value=next(iter(unknown)), count=len(unknown)))
 
     all_ids = sorted(known | set(listed), key=natural_key)
     order = {node: i for i, node in enumerate(all_ids)}

@@ -37,7 +37,13 @@
       }
       return a.position - b.position;
     }
-    var order = collator.compare(cellText(a.row, index), cellText(b.row, index));
+    var s = cellText(a.row, index);
+    var t = cellText(b.row, index);
+    // Missing text (shown as an em dash) sorts last too.
+    if ((s === "\u2014") !== (t === "\u2014")) {
+      return s === "\u2014" ? 1 : -1;
+    }
+    var order = collator.compare(s, t);
     return order !== 0 ? direction * order : a.position - b.position;
   }
 
