@@ -503,3 +503,10 @@ def test_an_id_with_a_line_break_is_refused_but_a_quoted_note_may_span_lines(tmp
     assert (finding.line, finding.column, finding.value) == (2, "source", "a\nb")
     clean = load_network(edge_study(tmp_path / "b", 'source,target,note\na,b,"two\nlines"\n'))
     assert len(clean.edges) == 1
+
+
+def test_spaces_around_ids_are_removed_and_reported(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source,target\n a,b\nb,c \nc,a\n"))
+    assert list(clean.nodes.index) == ["a", "b", "c"]
+    fixes = [f for f in clean.checks.findings if "spaces" in f.message]
+    assert [(f.column, f.line, f.count) for f in fixes] == [("source", 2, 1), ("target", 3, 1)]

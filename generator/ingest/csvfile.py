@@ -21,6 +21,22 @@ class Table:
     header: tuple[str, ...]
     rows: tuple[tuple[str, ...], ...]
     lines: tuple[int, ...]
+    trimmed: tuple[tuple[int, int], ...] = ()  # (line, column index) of values trimmed of spaces
+
+    def trimmed_findings(self, *names: str | None) -> list[Finding]:
+        """A fix finding per named column whose values had spaces around them (" a" became "a")."""
+        found = []
+        for name in names:
+            if name is None or name not in self.header:
+                continue
+            index = self.header.index(name)
+            lines = [line for line, i in self.trimmed if i == index]
+            if lines:
+                found.append(Finding(
+                    "fix", self.name, f"{len(lines)} {'value' if len(lines) == 1 else 'values'} "
+                    f"had spaces before or after them, removed (first on line {lines[0]})",
+                    line=lines[0], column=name, count=len(lines)))
+        return found
 
     def column(self, name: str) -> int:
         return self.header.index(name)
@@ -49,7 +65,7 @@ class Table:
 _CONTROL = re.compile(r"[\x00-\x1f\x7f]")
 
 
-def read_table(path: Path, name: str, *, allow_no_rows: bool = False) -> Table:
+def read_table(path: Path, name: str) -> Table:
     """Read ``path`` as UTF-8 CSV (a byte-order mark is allowed); every value stays text.
 
     Ids such as "007" must survive as written, so nothing is converted here.
@@ -65,6 +81,7 @@ def read_table(path: Path, name: str, *, allow_no_rows: bool = False) -> Table:
     reader = csv.reader(io.StringIO(text, newline=""))
     rows: list[tuple[str, ...]] = []
     lines: list[int] = []
+    trimmed: list[tuple[int, int]] = []  # (line, column index) of values that had spaces around
     header: tuple[str, ...] | None = None
     start = 1
     try:
@@ -73,13 +90,14 @@ def read_table(path: Path, name: str, *, allow_no_rows: bool = False) -> Table:
                 header = tuple(cell.strip() for cell in record)
             elif any(cell.strip() for cell in record):
                 rows.append(tuple(cell.strip() for cell in record))
+                trimmed += [(start, i) for i, cell in enumerate(record) if cell != cell.strip()]
                 lines.append(start)
             start = reader.line_num + 1
     except csv.Error as exc:
         raise DataError(Finding("error", name, f"is not valid CSV: {exc}", line=reader.line_num)) from None
     if header is None or not any(header):
         raise DataError(Finding("error", name, "is empty; it needs a header row and data rows"))
-    if not rows and not allow_no_rows:
+    if not rows:
         raise DataError(Finding("error", name, "has a header row but no data rows", line=1))
     seen = set()
     for column in header:
@@ -93,4 +111,4 @@ def read_table(path: Path, name: str, *, allow_no_rows: bool = False) -> Table:
                 "error", name, f"has {len(row)} values where the header has {len(header)} columns",
                 line=line, value=",".join(row)))
 
-    return Table(name, header, tuple(rows), tuple(lines))
+    return Table(name, header, tuple(rows), tuple(lines), tuple(trimmed))

@@ -103,6 +103,7 @@ def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.Dat
     if net.label is not None and net.label != net.node_id:
         table.require(net.label, what="node list")
     table.refuse_control_characters(net.node_id, net.label)
+    checks.findings += table.trimmed_findings(net.node_id)
     id_col = table.column(net.node_id)
     first_line: dict[str, int] = {}
     for row, line in zip(table.rows, table.lines):
@@ -178,6 +179,7 @@ def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_
     columns = [net.source, net.target] + ([net.weight] if net.weight else [])
     table.require(*columns, what="edge list")
     table.refuse_control_characters(*columns)
+    checks.findings += table.trimmed_findings(net.source, net.target)
     s, t = table.column(net.source), table.column(net.target)
     w = table.column(net.weight) if net.weight else None
     ties = []
