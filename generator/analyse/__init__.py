@@ -12,7 +12,7 @@ from ..ingest import CleanNetwork
 from .communities import COMMUNITY_REFERENCES, CommunityResult, find_communities
 from .graph import build_graph, undirected_version
 from .layout import network_layout
-from .measures import MEASURE_INFO, PathSampling, node_measures
+from .measures import MEASURE_INFO, PATH_MEASURES, PathSampling, node_measures
 from .provenance import library_versions
 from .references import REFERENCES, Reference
 from .statistics import STATISTIC_INFO, Statistic, network_statistics
@@ -20,6 +20,7 @@ from .statistics import STATISTIC_INFO, Statistic, network_statistics
 __all__ = [
     "COMMUNITY_REFERENCES",
     "MEASURE_INFO",
+    "PATH_MEASURES",
     "REFERENCES",
     "STATISTIC_INFO",
     "CommunityResult",

@@ -15,7 +15,11 @@ import pandas as pd
 from .graph import undirected_version
 from .seeding import seeded_igraph
 
-__all__ = ["MEASURE_INFO", "MeasureInfo", "NodeMeasures", "PathSampling", "node_measures"]
+__all__ = ["MEASURE_INFO", "PATH_MEASURES", "MeasureInfo", "NodeMeasures", "PathSampling",
+           "node_measures"]
+
+# Measures computed from shortest paths: the ones estimated when path sources are sampled.
+PATH_MEASURES = ("betweenness", "closeness", "harmonic")
 
 
 @dataclass(frozen=True)

@@ -8,7 +8,7 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import MaxNLocator
 
-from ..analyse import NetworkAnalysis
+from ..analyse import PATH_MEASURES, NetworkAnalysis
 from .figure import Figure
 from .style import BAR_COLOUR, INK, drawing_style, figure_bytes, new_chart, quiet_axes
 from .wording import count_of, format_value, node_name
@@ -16,7 +16,6 @@ from .wording import count_of, format_value, node_name
 __all__ = ["CENTRALITY_MEASURES", "draw_centrality", "draw_degree"]
 
 CENTRALITY_MEASURES = ("betweenness", "closeness", "harmonic", "eigenvector", "pagerank")
-PATH_MEASURES = ("betweenness", "closeness", "harmonic")
 
 _DISPLAY_NAME = {
     "betweenness": "betweenness",

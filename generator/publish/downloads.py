@@ -9,7 +9,7 @@ import math
 import networkx as nx
 import pandas as pd
 
-from ..analyse import MEASURE_INFO, NetworkAnalysis
+from ..analyse import MEASURE_INFO, PATH_MEASURES, NetworkAnalysis
 
 __all__ = ["datapackage_json", "edges_csv", "graphml", "network_files", "nodes_csv", "statistics_csv"]
 
@@ -87,7 +87,7 @@ def _measure_description(name: str, analysis: NetworkAnalysis) -> str:
                 f"runs, seed {c.seed}); 1 is the largest.")
     info = MEASURE_INFO[name]
     text = f"{info.title}: {info.definition}"
-    if analysis.sampling and name in ("betweenness", "closeness", "harmonic"):
+    if analysis.sampling and name in PATH_MEASURES:
         text += (f" Estimated from {analysis.sampling.sources} sampled source nodes of "
                  f"{analysis.sampling.nodes} (Brandes & Pich 2007), seed {analysis.sampling.seed}.")
     return text

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from ..analyse import MEASURE_INFO, STATISTIC_INFO, CommunityResult, NetworkAnalysis
+from ..analyse import MEASURE_INFO, PATH_MEASURES, STATISTIC_INFO, CommunityResult, NetworkAnalysis
 from ..config import NetworkConfig
 from .display import is_missing, significant
 
@@ -16,8 +16,6 @@ COMMUNITY_METHOD_TITLES = {
     "louvain": "Louvain",
     "label-propagation": "Label propagation",
 }
-# Measures computed from shortest paths; these are the ones estimated when paths are sampled.
-PATH_MEASURES = ("betweenness", "closeness", "harmonic")
 
 
 def measure_title(column: str) -> str:
