@@ -109,7 +109,7 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
         for finding in clean.checks.findings:
             report(finding)
     notes, _ = _read_notes(study)
-    load_theme(study)  # an unknown theme fails here as it would in build
+    load_theme(study).check_templates()  # an unknown or broken theme fails here as in build
     check_output_folder(study.output, _input_files(study, cleaned, notes))
     return study
 

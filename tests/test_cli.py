@@ -171,3 +171,12 @@ def test_asymmetric_undirected_matrix_exits_1_naming_the_cell_and_leaves_site_un
     assert "data/m.csv, line 3, column 'c'" in err and "not symmetric" in err and "(value: '2')" in err
     assert "Traceback" not in err
     assert snapshot(study / "output") == before
+
+
+def test_check_finds_a_template_syntax_error_in_a_user_theme(tmp_path: Path, capsys) -> None:
+    study = make_study(tmp_path / "study", toml=STUDY + '\n[site]\ntheme = "mytheme"\n')
+    (study / "mytheme" / "templates").mkdir(parents=True)
+    (study / "mytheme" / "templates" / "index.html").write_text("{% if %}\n")
+    assert main(["check", str(study)]) == 1
+    err = capsys.readouterr().err
+    assert "[site.theme] template index.html, line 1" in err and "Traceback" not in err

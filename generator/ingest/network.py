@@ -293,8 +293,9 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
         extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
         how = f"weights combined by {net.duplicates}" if weighted else "kept once"
         what = "ties" if net.directed else "ties (either direction, as the network is undirected)"
+        lines = sorted(repeated["line"].tolist())
         checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; lines "
-                           f"{_lines(sorted(repeated['line'].tolist()))}", count=extra))
+                           f"{_lines(lines)}", line=lines[0], count=extra))
     merged = frame.groupby(["a", "b"], sort=True)["weight"].agg(_COMBINE[net.duplicates]).reset_index()
     names = sorted(order, key=order.__getitem__)
     edges = pd.DataFrame({

@@ -66,6 +66,15 @@ class Theme:
     environment: jinja2.Environment
     static: dict[str, bytes]  # relative posix path under static/ -> bytes
 
+    def check_templates(self) -> None:
+        """Compile every template, so ``check`` finds a syntax error before a build does."""
+        for template in self.environment.list_templates():
+            try:
+                self.environment.get_template(template)
+            except jinja2.TemplateSyntaxError as exc:
+                raise ConfigError(f"template {exc.name or template}, line {exc.lineno}: "
+                                  f"{exc.message}", key=_THEME_KEY) from None
+
     def render(self, template: str, context: dict[str, Any]) -> str:
         """Render ``template``; a broken template becomes a ConfigError naming file and line."""
         try:
