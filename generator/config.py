@@ -32,6 +32,8 @@ STUDY_FILE = "study.toml"
 COMMUNITY_METHODS = ("leiden", "louvain", "label-propagation")
 DUPLICATE_RULES = ("sum", "mean", "max")
 WEIGHT_MEANINGS = ("strength", "distance")
+DELIMITERS = (",", ";", "\t", "|")
+DECIMALS = (".", ",")
 SIZE_MEASURES = (
     "degree", "in_degree", "out_degree", "strength", "in_strength", "out_strength", "betweenness",
     "closeness", "harmonic", "eigenvector", "pagerank", "coreness",
@@ -69,6 +71,8 @@ class NetworkConfig:
     wave: int | None = None
     color_by: str | None = None
     size_by: str | None = None
+    delimiter: str = ","  # between values in every CSV file of this network
+    decimal: str = "."  # the decimal mark of numbers (weights, numeric attributes)
 
     @property
     def data_file(self) -> Path:
@@ -209,7 +213,12 @@ def _inside(root: Path, raw: str, key: str) -> Path:
 
 
 def _existing_file(root: Path, raw: str, key: str) -> Path:
+    if not raw.strip():
+        raise ConfigError("is empty; give the path of a file in the study folder, or leave the "
+                          "key out", key=key)
     path = _inside(root, raw, key)
+    if path.is_dir():
+        raise ConfigError(f"'{raw}' is a folder; give the path of a CSV file in it", key=key)
     if not path.is_file():
         raise ConfigError(f"file '{raw}' does not exist", key=key)
     return path
@@ -227,6 +236,18 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         raise ConfigError("give exactly one of 'edges' (an edge list) or 'matrix' (an adjacency "
                           "matrix)", key=dotted)
     nodes = t.get("nodes", str)
+    label = t.get("label", str)
+    if label is not None and nodes is None:
+        raise ConfigError(f"'label' names a node-list column ('{label}'), but this network has no "
+                          "'nodes' key; add the node list or remove 'label'", key=f"{dotted}.label")
+    delimiter = t.get("delimiter", str, ",")
+    if delimiter not in DELIMITERS:
+        raise ConfigError(f"must be one of \",\", \";\", \"\\t\" (a tab) or \"|\", got {delimiter!r}",
+                          key=f"{dotted}.delimiter")
+    decimal = t.choice("decimal", DECIMALS, ".")
+    if decimal == delimiter:
+        raise ConfigError(f"decimal = '{decimal}' is also the separator between values; with a "
+                          "decimal comma, set delimiter = \";\"", key=f"{dotted}.decimal")
     modes = t.get("modes", list, ["person", "event"])
     if len(modes) != 2 or not all(isinstance(m, str) and m for m in modes):
         raise ConfigError("must be a list of two names", key=f"{dotted}.modes")
@@ -267,11 +288,11 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     return NetworkConfig(
         id=net_id,
         title=title.strip(),
-        edges=_existing_file(root, edges, f"{dotted}.edges") if edges else None,
-        matrix=_existing_file(root, matrix, f"{dotted}.matrix") if matrix else None,
-        nodes=_existing_file(root, nodes, f"{dotted}.nodes") if nodes else None,
+        edges=_existing_file(root, edges, f"{dotted}.edges") if edges is not None else None,
+        matrix=_existing_file(root, matrix, f"{dotted}.matrix") if matrix is not None else None,
+        nodes=_existing_file(root, nodes, f"{dotted}.nodes") if nodes is not None else None,
         node_id=t.get("node_id", str, "id"),
-        label=t.get("label", str),
+        label=label,
         source=source,
         target=target,
         directed=directed,
@@ -284,6 +305,8 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         wave=wave,
         color_by=t.get("color_by", str),
         size_by=size_by,
+        delimiter=delimiter,
+        decimal=decimal,
     )
 
 
@@ -348,7 +371,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     if not all(isinstance(d, str) for d in drop):
         raise ConfigError("must be a list of column names", key="sharing.drop")
     si = _Table(raw.get("site", {}), "site", ("theme", "allow_html"))
-    summary_path = _existing_file(root, summary, "study.summary") if summary else None
+    summary_path = _existing_file(root, summary, "study.summary") if summary is not None else None
     if summary_path is not None and summary_path.is_relative_to(output):
         raise ConfigError(f"'{summary}' lies inside the output folder, which is replaced on every "
                           "build", key="study.output")

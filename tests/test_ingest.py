@@ -231,7 +231,7 @@ def test_missing_node_id_and_label_columns_are_refused(tmp_path):
 def test_row_with_the_wrong_number_of_values_is_refused_with_its_line(tmp_path):
     (finding,) = data_error(edge_study(tmp_path, "source,target\na,b\nb,c,d\n")).findings
     assert (finding.line, finding.value) == (3, "b,c,d")
-    assert finding.message == "has 3 values where the header has 2 columns"
+    assert finding.message.startswith("has 3 values where the header has 2 columns; check for")
 
 
 def test_utf8_file_with_byte_order_mark_is_read(tmp_path):
@@ -489,7 +489,9 @@ def test_weights_must_be_plain_decimal_numbers(tmp_path, text):
     edges = f'source,target,w\na,b,"{text}"\n'
     (finding,) = data_error(edge_study(tmp_path, edges, weight="w")).findings
     assert (finding.line, finding.column, finding.value) == (2, "w", text)
-    assert finding.message == "weight is not a number"
+    assert finding.message.startswith("weight is not a number")
+    # A decimal comma gets a hint on how to declare it; the other forms need none.
+    assert ("decimal = \",\"" in finding.message) == (text == "1,5")
 
 
 def test_a_repeated_column_name_is_refused(tmp_path):
@@ -510,3 +512,148 @@ def test_spaces_around_ids_are_removed_and_reported(tmp_path):
     assert list(clean.nodes.index) == ["a", "b", "c"]
     fixes = [f for f in clean.checks.findings if "spaces" in f.message]
     assert [(f.column, f.line, f.count) for f in fixes] == [("source", 2, 1), ("target", 3, 1)]
+
+
+# ---------------------------------------------------------------------------------------------
+# Messy files from spreadsheets and survey tools: nothing is silently misread
+
+
+def test_unclosed_quote_in_a_node_list_is_an_error_naming_the_line_where_it_opened(tmp_path):
+    nodes = 'id,clinic,note\na,north,ok\nb,south,"starts here\nc,east,x\nd,west,y\ne,north,z\n'
+    root = edge_study(tmp_path, "source,target\na,b\nc,d\nd,e\n", nodes=nodes)
+    (finding,) = data_error(root).findings
+    assert (finding.file, finding.line) == (NODES, 3)
+    assert "never closed" in finding.message
+
+
+def test_a_quoted_value_spanning_too_many_lines_is_refused_but_a_short_one_is_read(tmp_path):
+    long_note = "\n".join(f"line {i}" for i in range(12))
+    nodes = f'id,note\na,"{long_note}"\nb,"two\nlines"\n'
+    (finding,) = data_error(edge_study(tmp_path / "long", "source,target\na,b\n", nodes=nodes)).findings
+    assert (finding.file, finding.line) == (NODES, 2)
+    assert "runs over 12 lines" in finding.message
+    clean = load_network(edge_study(tmp_path / "short", "source,target\na,b\n",
+                                    nodes='id,note\na,"two\nlines"\nb,x\n'))
+    assert clean.nodes.loc["a", "note"] == "two\nlines"
+
+
+def test_an_edge_list_naming_every_tie_in_both_directions_is_read_once(tmp_path):
+    # Undirected lists exported with each tie twice (a,b,3 and b,a,3) must not double strengths.
+    edges = "source,target,w\na,b,3\nb,a,3\nb,c,1\nc,b,1\n"
+    clean = load_network(edge_study(tmp_path, edges, weight="w"))
+    assert [tuple(r) for r in clean.edges.itertuples(index=False)] == [("a", "b", 3.0),
+                                                                      ("b", "c", 1.0)]
+    fix = only(clean.checks.findings, "fix")
+    assert "listed twice, once in each direction" in fix.message and fix.count == 2
+    strengths = analyse(clean).measures["strength"].to_dict()
+    assert strengths == {"a": 3.0, "b": 4.0, "c": 1.0}
+
+
+def test_some_ties_in_both_directions_follow_duplicates_with_a_warning_that_counts_them(tmp_path):
+    edges = "source,target,w\na,b,3\nb,a,3\nb,c,1\n"
+    clean = load_network(edge_study(tmp_path, edges, weight="w"))
+    assert list(clean.edges["weight"]) == [6.0, 1.0]  # duplicates = "sum", as configured
+    warning = only(clean.checks.findings, "warning")
+    assert (warning.count, warning.line) == (1, 2)
+    assert "'a','b' on line 2 and 'b','a' on line 3" in warning.message
+
+
+def test_repeated_distances_add_their_strengths_so_a_repeat_is_never_weaker(tmp_path):
+    # Summing lengths would turn two ties of distance 2 into one of distance 4 (weaker than
+    # either); adding strengths 1/2 + 1/2 gives distance 1 (the harmonic rule, exact fractions).
+    edges = "source,target,d\na,b,2\na,b,2\nb,c,3\nb,c,6\nc,d,5\n"
+    clean = load_network(edge_study(tmp_path, edges, weight="d", weight_means="distance",
+                                    directed=True))
+    assert list(clean.edges["weight"]) == [1.0, 2.0, 5.0]
+    assert "adding their strengths" in only(clean.checks.findings, "fix").message
+
+
+def test_trailing_empty_columns_from_a_spreadsheet_are_dropped_with_a_fix(tmp_path):
+    nodes = "id,clinic,,\na,north,,\nb,south,,\n"
+    clean = load_network(edge_study(tmp_path, "source,target,\na,b,\n", nodes=nodes))
+    assert clean.attributes == ("clinic",)
+    dropped = [f for f in clean.checks.findings if "empty column" in f.message]
+    assert sorted((f.file, f.count) for f in dropped) == [(EDGES, 1), (NODES, 2)]
+
+
+def test_a_column_with_no_name_but_values_is_refused(tmp_path):
+    (finding,) = data_error(edge_study(tmp_path, "source,,target\na,x,b\n")).findings
+    assert (finding.line, finding.value) == (2, "x")
+    assert "column 2 has no name" in finding.message
+
+
+def test_survey_export_with_question_and_import_code_rows_is_refused_naming_them(tmp_path):
+    nodes = ("id,clinic,years\n"
+             "Respondent ID,Which clinic do you work at?,How many years in post?\n"
+             '{"ImportId":"QID1"},{"ImportId":"QID2"},{"ImportId":"QID3"}\n'
+             "a,north,3\nb,south,4\nc,east,10\nd,west,1\n")
+    root = edge_study(tmp_path, "source,target\na,b\nb,c\nc,d\n", nodes=nodes)
+    (finding,) = data_error(root).findings
+    assert (finding.file, finding.line, finding.value) == (NODES, 2, "Respondent ID")
+    assert "column 'years' holds 'How many years in post?'" in finding.message
+    assert "delete lines 2-3" in finding.message
+
+
+def test_import_code_row_in_an_edge_list_is_refused(tmp_path):
+    edges = 'source,target\n{"ImportId":"QID1"},{"ImportId":"QID2"}\na,b\n'
+    (finding,) = data_error(edge_study(tmp_path, edges)).findings
+    assert (finding.line, finding.column) == (2, "source")
+    assert "import code" in finding.message
+
+
+def test_a_node_missing_from_ties_with_ordinary_values_is_not_taken_for_a_header(tmp_path):
+    nodes = "id,years\nz,5\na,3\nb,4\nc,10\n"
+    clean = load_network(edge_study(tmp_path, "source,target\na,b\nb,c\n", nodes=nodes))
+    assert list(clean.nodes.index) == ["a", "b", "c", "z"]
+
+
+def test_ids_are_normalised_to_nfc_so_one_name_typed_two_ways_is_one_node(tmp_path):
+    composed, decomposed = "Zo\u00eb", "Zoe\u0308"
+    clean = load_network(edge_study(tmp_path, f"source,target\n{composed},b\n{decomposed},c\n"))
+    assert list(clean.nodes.index) == [composed, "b", "c"]
+    fix = next(f for f in clean.checks.findings if "Unicode NFC" in f.message)
+    assert (fix.file, fix.line) == (EDGES, 3)
+
+
+def test_ids_equal_apart_from_case_stay_apart_with_a_warning(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source,target\na,b\nA,b\n"))
+    assert list(clean.nodes.index) == ["A", "a", "b"]
+    warning = only(clean.checks.findings, "warning")
+    assert "'A' and 'a'" in warning.message
+
+
+def test_unused_edge_columns_are_named_with_a_hint_when_a_weight_key_is_missing(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source,target,weight,note\na,b,2,x\nb,c,1,y\n"))
+    assert not clean.weighted
+    note = next(f for f in clean.checks.findings if "not used" in f.message)
+    assert note.level == "note" and note.count == 2
+    assert "columns 'weight', 'note' are not used" in note.message
+    assert 'set weight = "weight"' in note.message
+
+
+def test_semicolon_file_is_refused_with_the_key_to_set(tmp_path):
+    (finding,) = data_error(edge_study(tmp_path, "source;target;w\na;b;1,5\n")).findings
+    assert finding.line == 1
+    assert "seems to use ';' between values" in finding.message
+    assert 'set delimiter = ";"' in finding.message and 'decimal = ","' in finding.message
+
+
+def test_semicolons_and_decimal_commas_are_read_when_declared(tmp_path):
+    root = edge_study(tmp_path, "source;target;w\na;b;1,5\nb;c;2\n", weight="w", delimiter=";",
+                      decimal=",", nodes="id;share\na;0,25\nb;1\nc;0,5\n")
+    clean = load_network(root)
+    assert list(clean.edges["weight"]) == [1.5, 2.0]
+    assert list(clean.nodes["share"]) == [0.25, 1.0, 0.5]
+
+
+def test_a_tab_separated_file_is_read_with_its_delimiter(tmp_path):
+    clean = load_network(edge_study(tmp_path, "source\ttarget\na\tb\n", delimiter="\t"))
+    assert [tuple(r) for r in clean.edges.itertuples(index=False)] == [("a", "b")]
+
+
+def test_blank_lines_before_the_header_are_skipped_and_lines_still_count(tmp_path):
+    clean = load_network(edge_study(tmp_path, "\n\nsource,target\na,b\nb,b\n"))
+    skipped = next(f for f in clean.checks.findings if "blank lines before the header" in f.message)
+    assert (skipped.line, skipped.count) == (3, 2)
+    loop = next(f for f in clean.checks.findings if "self-loop" in f.message)
+    assert loop.line == 5  # line numbers are those of the file, blank lines included

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import re
+from fractions import Fraction
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -78,7 +79,11 @@ _NUMBER = re.compile(r"[+-]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][+-]?[0-9]+)?")
 _SPECIAL = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "nan"}
 
 
-def _number(text: str) -> float | None:
+def _number(text: str, decimal: str = ".") -> float | None:
+    if decimal == ",":
+        if "." in text:  # with a decimal comma, "1.5" is ambiguous (a thousands mark?): refuse
+            return None
+        text = text.replace(",", ".")
     if _NUMBER.fullmatch(text) or text.lower() in _SPECIAL:
         return float(text)
     return None
@@ -97,8 +102,11 @@ def _lines(lines: list[int]) -> str:
 # Node list
 
 
-def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.DataFrame:
-    table = read_table(net.nodes, name)  # type: ignore[arg-type]
+def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks
+                    ) -> tuple[pd.DataFrame, dict[str, int]]:
+    """The node list indexed by id (all text, file order) and the line of each id."""
+    table = read_table(net.nodes, name, delimiter=net.delimiter)  # type: ignore[arg-type]
+    checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
         table.require(net.label, what="node list")
@@ -120,21 +128,23 @@ def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks) -> pd.Dat
     frame = frame.set_index(net.node_id)
     frame.index = frame.index.astype(str)
     frame.index.name = "id"
-    return frame
+    return frame, first_line
 
 
 _CANONICAL_NUMBER = r"-?(0|[1-9][0-9]*)(\.[0-9]+)?"
 
 
-def _typed_attributes(frame: pd.DataFrame) -> pd.DataFrame:
+def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
     """Empty cells become missing; a column whose filled cells are all numbers becomes numeric."""
     typed = {}
+    pattern = _CANONICAL_NUMBER if decimal == "." else _CANONICAL_NUMBER.replace("\\.", ",")
     for column in frame.columns:
         text = frame[column].astype("string").str.strip().replace("", pd.NA)
         filled = text.dropna()
         # "01234" is a code, not a number: only columns of plainly written numbers become numeric.
-        canonical = filled.str.fullmatch(_CANONICAL_NUMBER).all() if len(filled) else False
-        numbers = pd.to_numeric(text, errors="coerce") if canonical else text
+        canonical = filled.str.fullmatch(pattern).all() if len(filled) else False
+        plain = text.str.replace(",", ".", regex=False) if decimal == "," and canonical else text
+        numbers = pd.to_numeric(plain, errors="coerce") if canonical else text
         if canonical and numbers.notna().sum() == text.notna().sum():
             all_whole = ((numbers.dropna() % 1) == 0).all()
             typed[column] = numbers.astype("Int64") if all_whole else numbers.astype("Float64")
@@ -160,9 +170,13 @@ def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: s
     if text == "":
         checks.add(Finding("error", name, "weight is missing", line=line, column=column, value=text))
         return None
-    value = _number(text)
+    value = _number(text, net.decimal)
     if value is None or math.isnan(value):
-        checks.add(Finding("error", name, "weight is not a number", line=line, column=column, value=text))
+        mark = ("; decimal = \",\" is set, so write 2,5 (not 2.5)" if net.decimal == "," else
+                "; this looks like a decimal comma: set decimal = \",\" (and delimiter = \";\") "
+                "in this network's table of study.toml" if re.fullmatch(r"[0-9]+,[0-9]+", text) else "")
+        checks.add(Finding("error", name, f"weight is not a number{mark}", line=line,
+                           column=column, value=text))
     elif math.isinf(value):
         checks.add(Finding("error", name, "weight is infinite", line=line, column=column, value=text))
     elif value < 0:
@@ -174,14 +188,49 @@ def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: s
     return None
 
 
+def _note_unused_columns(header: tuple[str, ...], rows: tuple[tuple[str, ...], ...],
+                         used: list[str], net: NetworkConfig, name: str, checks: DataChecks) -> None:
+    """Name the edge-list columns the analysis does not read, so a forgotten ``weight`` key (or a
+    column the analyst expected to matter) does not pass unnoticed."""
+    unused = [c for c in header if c not in used]
+    if not unused:
+        return
+    listed = ", ".join(repr(c) for c in unused)
+    message = (f"{'column' if len(unused) == 1 else 'columns'} {listed} "
+               f"{'is' if len(unused) == 1 else 'are'} not used by the analysis")
+    if net.weight is None:
+        numeric = [c for c in unused if _all_numbers(rows, header.index(c), net.decimal)]
+        if numeric:
+            message += (f"; the network is read as unweighted because study.toml sets no "
+                        f"'weight' key: to use {numeric[0]!r} as tie weights, set "
+                        f"weight = \"{numeric[0]}\"")
+    checks.add(Finding("note", name, message, line=1, column=unused[0], count=len(unused)))
+
+
+def _all_numbers(rows: tuple[tuple[str, ...], ...], index: int, decimal: str) -> bool:
+    filled = [row[index] for row in rows if row[index]]
+    return bool(filled) and all(_number(v, decimal) is not None for v in filled)
+
+
 def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_RawTie]:
-    table = read_table(net.edges, name)  # type: ignore[arg-type]
+    table = read_table(net.edges, name, delimiter=net.delimiter)  # type: ignore[arg-type]
+    checks.findings += table.findings
     columns = [net.source, net.target] + ([net.weight] if net.weight else [])
     table.require(*columns, what="edge list")
+    _note_unused_columns(table.header, table.rows, columns, net, name, checks)
     table.refuse_control_characters(*columns)
     checks.findings += table.trimmed_findings(net.source, net.target)
     s, t = table.column(net.source), table.column(net.target)
     w = table.column(net.weight) if net.weight else None
+    for row, line in list(zip(table.rows, table.lines))[:HEADER_LIKE_ROWS]:
+        code = next((i for i in (s, t, w) if i is not None and _IMPORT_CODE.match(row[i])), None)
+        if code is not None:
+            raise DataError(Finding(
+                "error", name, f"line {line} does not look like a tie: column "
+                f"{table.header[code]!r} holds {row[code]!r}, which looks like an import code. "
+                "Survey tools often export extra header rows (question text, import codes) under "
+                f"the column names; delete {_span(table.lines[0], line)} and build again", line=line,
+                column=table.header[code], value=row[code]))
     ties = []
     zero_lines = []
     for row, line in zip(table.rows, table.lines):
@@ -216,7 +265,8 @@ def _zero_weight_reason(net: NetworkConfig) -> str:
 
 def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[list[_RawTie], list[str], bool]:
     """Rows are senders (source), columns receivers (target); a cell is the tie's weight."""
-    table = read_table(net.matrix, name)  # type: ignore[arg-type]
+    table = read_table(net.matrix, name, delimiter=net.delimiter, row_labels=True)  # type: ignore[arg-type]
+    checks.findings += table.findings
     table.refuse_control_characters(*table.header)
     col_labels = list(table.header[1:])
     row_labels = [row[0] for row in table.rows]
@@ -267,6 +317,56 @@ def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[lis
 _COMBINE = {"sum": "sum", "mean": "mean", "max": "max"}
 
 
+def _combine_distances(weights: pd.Series) -> float:
+    """Repeated distance ties add their strengths (1/distance): two ties of distance 2 make one
+    of distance 1, so repeating a tie never makes it weaker. Exact fractions, so the result does
+    not depend on the order of rows."""
+    return float(1 / sum(1 / Fraction(float(w)) for w in weights))
+
+
+def _combine_rule(net: NetworkConfig) -> str:
+    if net.duplicates == "sum" and net.weight_means == "distance":
+        return "adding their strengths (1/distance), so distances 2 and 2 become 1"
+    return net.duplicates
+
+
+def _mirrored_listing(kept: list[_RawTie], net: NetworkConfig, name: str, order: dict[str, int],
+                      weighted: bool, checks: DataChecks) -> list[_RawTie]:
+    """Undirected ties that many tools export twice (a,b and b,a with the same weight).
+
+    When every pair is listed exactly so, each pair is read as one tie; summing both rows would
+    double every strength. When only some pairs are, ``duplicates`` applies and a warning counts
+    them."""
+    groups: dict[tuple[int, int], list[_RawTie]] = {}
+    for tie in kept:
+        a, b = order[tie.source], order[tie.target]
+        groups.setdefault((min(a, b), max(a, b)), []).append(tie)
+    both = [g for g in groups.values() if len({order[t.source] < order[t.target] for t in g}) == 2]
+    if not both:
+        return kept
+    mirrored = all(len(g) == 2 and g[0].source == g[1].target and g[0].weight == g[1].weight
+                   for g in groups.values())
+    if mirrored:
+        first = min(min(t.line for t in g) for g in groups.values())
+        checks.add(Finding(
+            "fix", name, f"every tie is listed twice, once in each direction and with the same "
+            f"weight ({_count(len(groups), 'pair', 'pairs')}), as many tools export undirected "
+            "networks; each pair was read as one tie, so strengths are not doubled",
+            line=first, count=len(groups)))
+        return [min(g, key=lambda t: t.line) for g in groups.values()]
+    if weighted:
+        example = min(both, key=lambda g: min(t.line for t in g))
+        one, other = sorted(example, key=lambda t: t.line)[:2]
+        checks.add(Finding(
+            "warning", name, f"{_count(len(both), 'pair is', 'pairs are')} listed in both "
+            f"directions (such as {one.source!r},{one.target!r} on line {one.line} and "
+            f"{other.source!r},{other.target!r} on line {other.line}) but not every pair is; in "
+            f"this undirected network both rows are one tie, so their weights were combined by "
+            f"{_combine_rule(net)}. If the file lists some ties twice by mistake, remove one row "
+            "of each", line=one.line, count=len(both)))
+    return kept
+
+
 def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[str, int],
                 weighted: bool, checks: DataChecks) -> pd.DataFrame:
     loops = [t for t in ties if t.source == t.target]
@@ -277,6 +377,8 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
                            line=loops[0].line if len(loops) == 1 else None,
                            value=loops[0].source, count=len(loops)))
     kept = [t for t in ties if t.source != t.target]
+    if not net.directed:
+        kept = _mirrored_listing(kept, net, name, order, weighted, checks)
 
     def key(t: _RawTie) -> tuple[int, int]:
         a, b = order[t.source], order[t.target]
@@ -291,12 +393,17 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
     repeated = frame[frame.duplicated(["a", "b"], keep=False)]
     if len(repeated):
         extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
-        how = f"weights combined by {net.duplicates}" if weighted else "kept once"
+        how = f"weights combined by {_combine_rule(net)}" if weighted else "kept once"
         what = "ties" if net.directed else "ties (either direction, as the network is undirected)"
         lines = sorted(repeated["line"].tolist())
         checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; lines "
                            f"{_lines(lines)}", line=lines[0], count=extra))
     merged = frame.groupby(["a", "b"], sort=True)["weight"].agg(_COMBINE[net.duplicates]).reset_index()
+    if weighted and len(repeated) and net.duplicates == "sum" and net.weight_means == "distance":
+        exact = repeated.groupby(["a", "b"], sort=True)["weight"].agg(_combine_distances)
+        merged = merged.set_index(["a", "b"])
+        merged.loc[exact.index, "weight"] = exact
+        merged = merged.reset_index()
     names = sorted(order, key=order.__getitem__)
     edges = pd.DataFrame({
         "source": pd.Series([names[i] for i in merged["a"]], dtype=str),
@@ -307,13 +414,82 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
     return edges
 
 
+# Survey tools put extra header rows (the question text, an import code such as
+# {"ImportId":"QID1"}) under the column names; they are checked for among the first rows.
+HEADER_LIKE_ROWS = 3
+_IMPORT_CODE = re.compile(r'^\{\s*"[^"]*"\s*:.*\}$')
+
+
+def _span(first: int, last: int) -> str:
+    return f"line {first}" if first == last else f"lines {first}-{last}"
+
+
+def _header_like(frame: pd.DataFrame, node: str, tie_ids: set[str], decimal: str,
+                 skip: set[str]) -> str | None:
+    """Why the node-list row of ``node`` looks like a second header row, or None."""
+    row = frame.loc[node]
+    for column in frame.columns:
+        if _IMPORT_CODE.match(str(row[column])):
+            return f"column {column!r} holds {row[column]!r}, which looks like an import code"
+    if node in tie_ids or not tie_ids:
+        return None
+    rest = frame.iloc[HEADER_LIKE_ROWS:]
+    for column in frame.columns:
+        value = str(row[column])
+        if column in skip or not value or _number(value, decimal) is not None:
+            continue
+        others = [v for v in rest[column] if v]
+        if len(others) >= 3 and all(_number(v, decimal) is not None for v in others):
+            return (f"its id {node!r} appears in no tie and column {column!r} holds {value!r} "
+                    "where the other rows hold numbers")
+    return None
+
+
+def _refuse_extra_header_rows(frame: pd.DataFrame, lines: dict[str, int], tie_ids: set[str],
+                              net: NetworkConfig, name: str, checks: DataChecks) -> None:
+    head = list(frame.index[:HEADER_LIKE_ROWS])
+    skip = {net.label} if net.label else set()
+    reasons = {node: _header_like(frame, node, tie_ids, net.decimal, skip) for node in head}
+    flagged = [node for node in head if reasons[node]]
+    if not flagged:
+        return
+    last = head.index(flagged[-1])
+    # Rows above a flagged one that name no tie belong to the same block of extra headers.
+    block = [node for node in head[:last + 1] if node not in tie_ids or reasons[node]]
+    first_line, last_line = lines[block[0]], lines[block[-1]]
+    where = _span(first_line, last_line)
+    reason = reasons[flagged[0]]
+    checks.add(Finding(
+        "error", name, f"line {lines[flagged[0]]} does not look like a node: {reason}. Survey "
+        "tools often export extra header rows (question text, import codes) under the column "
+        f"names; delete {where} and build again", line=lines[flagged[0]], value=flagged[0]))
+    checks.raise_if_errors()
+
+
+def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) -> None:
+    """'a' and 'A' are two nodes; say so, since a person typed two ways is a common slip."""
+    groups: dict[str, list[str]] = {}
+    for node in ids:
+        groups.setdefault(node.casefold(), []).append(node)
+    clashes = [g for g in groups.values() if len(g) > 1]
+    if not clashes:
+        return
+    shown = "; ".join(" and ".join(repr(n) for n in g) for g in clashes[:MAX_LINES_LISTED])
+    more = f" and {len(clashes) - MAX_LINES_LISTED} more" if len(clashes) > MAX_LINES_LISTED else ""
+    checks.add(Finding(
+        "warning", name, f"{_count(len(clashes), 'set', 'sets')} of ids differ only in upper or "
+        f"lower case and are read as different nodes: {shown}{more}; if they are the same node, "
+        "write the id the same way in every file", value=clashes[0][0], count=len(clashes)))
+
+
 def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     """Read, check and clean one network; raise DataError listing every error found."""
     checks = DataChecks()
     data_name = study.relative(net.data_file)
     node_frame = None
+    node_lines: dict[str, int] = {}
     if net.nodes is not None:
-        node_frame = _read_node_list(net, study.relative(net.nodes), checks)
+        node_frame, node_lines = _read_node_list(net, study.relative(net.nodes), checks)
     if net.edges is not None:
         ties = _read_edge_list(net, data_name, checks)
         weighted = net.weight is not None
@@ -321,6 +497,9 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     else:
         ties, listed, weighted = _read_matrix(net, data_name, checks)
     checks.raise_if_errors()
+    if node_frame is not None:
+        _refuse_extra_header_rows(node_frame, node_lines, set(listed), net,
+                                  study.relative(net.nodes), checks)  # type: ignore[arg-type]
     if not ties and node_frame is None:
         raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
                                 "the network would be empty"))
@@ -344,6 +523,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                            f"{shown}", value=next(iter(unknown)), count=len(unknown)))
 
     all_ids = sorted(known | set(listed), key=natural_key)
+    _warn_ids_equal_but_for_case(all_ids, study.relative(net.nodes) if net.nodes else data_name,
+                                 checks)
     order = {node: i for i, node in enumerate(all_ids)}
     edges = _clean_ties(ties, net, data_name, order, weighted, checks)
 
@@ -355,7 +536,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
         label_column = "label"  # a column called label is the natural display column
     node_frame = _rename_reserved_columns(node_frame, label_column, study.relative(net.nodes)
                                           if net.nodes else data_name, checks)
-    attrs = _typed_attributes(node_frame)
+    attrs = _typed_attributes(node_frame, net.decimal)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
     if label_column == net.node_id:
         labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
