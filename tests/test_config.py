@@ -378,3 +378,44 @@ def test_an_empty_title_is_refused(tmp_path, where, key):
         root = study_with(tmp_path, networks=[net(title="")])
     error = config_error(root)
     assert error.key == key and "may not be empty" in str(error)
+
+
+@pytest.mark.parametrize("key", ["edges", "nodes", "matrix"])
+def test_an_empty_path_is_refused_naming_the_key(tmp_path, key):
+    keys = {"edges": ""} if key == "edges" else {key: ""}
+    if key == "matrix":
+        keys = {"edges": None, "matrix": ""}
+    network = {k: v for k, v in {**net(), **keys}.items() if v is not None}
+    error = config_error(study_with(tmp_path, networks=[network]))
+    assert error.key == f"network[1].{key}"
+    assert "is empty" in str(error)
+
+
+def test_an_empty_summary_path_is_refused(tmp_path):
+    error = config_error(study_with(tmp_path, study={"title": "T", "summary": ""}))
+    assert error.key == "study.summary"
+
+
+def test_a_label_without_a_node_list_is_refused(tmp_path):
+    error = config_error(study_with(tmp_path, networks=[net(label="name")]))
+    assert error.key == "network[1].label"
+    assert "no 'nodes' key" in str(error)
+
+
+def test_a_folder_where_a_file_is_expected_is_named_a_folder(tmp_path):
+    (tmp_path / "data" / "lists").mkdir(parents=True)
+    error = config_error(study_with(tmp_path, networks=[net(nodes="data/lists")]))
+    assert error.key == "network[1].nodes"
+    assert "'data/lists' is a folder" in str(error)
+
+
+def test_delimiter_and_decimal_are_read_and_checked(tmp_path):
+    study = load_study(study_with(tmp_path / "ok", networks=[net(delimiter=";", decimal=",")]))
+    assert (study.networks[0].delimiter, study.networks[0].decimal) == (";", ",")
+    assert load_study(study_with(tmp_path / "tab", networks=[net(delimiter="\t")])
+                      ).networks[0].delimiter == "\t"
+    error = config_error(study_with(tmp_path / "bad", networks=[net(delimiter=":")]))
+    assert error.key == "network[1].delimiter"
+    error = config_error(study_with(tmp_path / "clash", networks=[net(decimal=",")]))
+    assert error.key == "network[1].decimal"
+    assert 'set delimiter = ";"' in str(error)
