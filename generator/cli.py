@@ -46,7 +46,7 @@ def _suggest_verb(argv: Sequence[str]) -> None:
 
 
 def _print_finding(finding: Finding) -> None:
-    print(f"{finding.level:<5} {finding.format()}")
+    print(f"{finding.level:<7} {finding.format()}")
 
 
 def _run(argv: Sequence[str]) -> int:
