@@ -16,6 +16,7 @@ else:  # pragma: no cover - exercised only on Python 3.10
     import tomli as tomllib
 
 from .errors import ConfigError
+from .vocabulary import SIZE_MEASURES, measure
 
 __all__ = [
     "CommunitiesConfig",
@@ -34,10 +35,6 @@ DUPLICATE_RULES = ("sum", "mean", "max")
 WEIGHT_MEANINGS = ("strength", "distance")
 DELIMITERS = (",", ";", "\t", "|")
 DECIMALS = (".", ",")
-SIZE_MEASURES = (
-    "degree", "in_degree", "out_degree", "strength", "in_strength", "out_strength", "betweenness",
-    "closeness", "harmonic", "eigenvector", "pagerank", "coreness",
-)
 _ID = re.compile(r"^[a-z0-9-]+$")
 
 DEFAULT_SEED = 1
@@ -279,10 +276,10 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         raise ConfigError(f"'{size_by}' is not a node measure; use one of {', '.join(SIZE_MEASURES)}"
                           f"{hint}", key=f"{dotted}.size_by")
     directed = t.get("directed", bool, False)
-    if size_by is not None and not directed and size_by.startswith(("in_", "out_")):
+    if size_by is not None and not directed and measure(size_by).directed_only:
         raise ConfigError(f"'{size_by}' applies only to directed networks; use "
                           f"'{size_by.split('_', 1)[1]}'", key=f"{dotted}.size_by")
-    if size_by is not None and edges is not None and weight is None and "strength" in size_by:
+    if size_by is not None and edges is not None and weight is None and measure(size_by).weighted_only:
         raise ConfigError(f"'{size_by}' needs a weight column; this network is unweighted, use "
                           f"'{size_by.replace('strength', 'degree')}'", key=f"{dotted}.size_by")
     return NetworkConfig(

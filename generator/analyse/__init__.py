@@ -9,26 +9,21 @@ import pandas as pd
 from ..config import CommunitiesConfig, MeasuresConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork
-from .communities import COMMUNITY_REFERENCES, CommunityResult, find_communities
-from .graph import build_graph, undirected_version
+from .communities import CommunityResult, find_communities
+from .graph import build_graph, tie_strengths, undirected_version
 from .layout import network_layout
-from .measures import MEASURE_INFO, PATH_MEASURES, PathSampling, node_measures
+from .measures import Omission, PathSampling, node_measures
 from .provenance import library_versions
-from .references import REFERENCES, Reference
-from .statistics import STATISTIC_INFO, Statistic, network_statistics
+from .statistics import Statistic, network_statistics
 
 __all__ = [
-    "COMMUNITY_REFERENCES",
-    "MEASURE_INFO",
-    "PATH_MEASURES",
-    "REFERENCES",
-    "STATISTIC_INFO",
     "CommunityResult",
     "NetworkAnalysis",
+    "Omission",
     "PathSampling",
-    "Reference",
     "Statistic",
     "analyse_network",
+    "tie_strengths",
 ]
 
 
@@ -36,8 +31,9 @@ __all__ = [
 class NetworkAnalysis:
     """Everything computed for one network, with the settings and versions that made it.
 
-    ``measures`` has one row per node (index: id) and the design's measure columns, including
-    ``community``; ``layout`` holds an (x, y) in the unit square per node, in node order.
+    ``measures`` has one row per node (index: id) and the measure columns that apply, including
+    ``community``; ``layout`` holds an (x, y) in the unit square per node, in node order. Names
+    and numbers only: how results are worded, coloured or drawn is decided downstream.
     """
 
     network_id: str
@@ -49,18 +45,14 @@ class NetworkAnalysis:
     statistics: tuple[Statistic, ...]
     communities: CommunityResult
     layout: tuple[tuple[float, float], ...]
-    omitted: dict[str, str]
+    omitted: dict[str, Omission]
     sampling: PathSampling | None
     seed: int
     nodes: pd.DataFrame  # the cleaned node table: index id, "label", then node attributes
     edges: pd.DataFrame  # the cleaned edge list: source, target, weight (if weighted)
     attributes: tuple[str, ...]  # node attribute columns of ``nodes``
     findings: tuple[Finding, ...]  # the data checks of ingest, passed on for the checks page
-    color_by: str | None
-    size_by: str | None
     versions: dict[str, str] = field(default_factory=dict)
-    edge_pairs: tuple[tuple[int, int], ...] = ()  # ties as vertex-index pairs, for drawing
-    edge_strengths: tuple[float, ...] = ()
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -68,22 +60,6 @@ class NetworkAnalysis:
     @property
     def labels(self) -> list[str]:
         return [str(v) for v in self.nodes["label"]]
-
-    @property
-    def references(self) -> list[Reference]:
-        """The references of every method that ran, in first-use order."""
-        keys: list[str] = ["opsahl2010", "newman2001"] if self.weighted else []
-        for column in self.measures.columns:
-            keys += MEASURE_INFO[column].references if column in MEASURE_INFO else ()
-        if self.sampling:
-            keys.append("brandes2007")
-        for stat in self.statistics:
-            info = STATISTIC_INFO.get(stat.name) or STATISTIC_INFO.get(stat.name.split(":")[0])
-            keys += info.references if info else ()
-        if self.communities.objective is not None:  # the runs happened (the network has ties)
-            keys += COMMUNITY_REFERENCES[self.communities.method] + ("hubert1985", "danon2005")
-        keys += ["fruchterman1991", "okabe2008"]  # the map's layout and colours
-        return [REFERENCES[k] for k in dict.fromkeys(keys)]
 
 
 def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
@@ -119,9 +95,5 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
         edges=network.edges,
         attributes=network.attributes,
         findings=tuple(network.checks.findings),
-        color_by=network.config.color_by,
-        size_by=network.config.size_by,
         versions=library_versions(),
-        edge_pairs=tuple(tuple(e.tuple) for e in graph.es),
-        edge_strengths=tuple(graph.es["strength"]),
     )

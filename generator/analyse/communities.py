@@ -11,13 +11,7 @@ import igraph as ig
 
 from .seeding import seeded_igraph
 
-__all__ = ["COMMUNITY_REFERENCES", "CommunityResult", "find_communities", "run_seeds"]
-
-COMMUNITY_REFERENCES = {
-    "leiden": ("traag2019", "newman2004"),
-    "louvain": ("blondel2008", "newman2004"),
-    "label-propagation": ("raghavan2007", "newman2004"),
-}
+__all__ = ["CommunityResult", "find_communities", "run_seeds"]
 
 
 @dataclass(frozen=True)

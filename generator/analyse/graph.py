@@ -6,17 +6,22 @@ import igraph as ig
 
 from ..ingest import CleanNetwork
 
-__all__ = ["build_graph", "undirected_version"]
+__all__ = ["build_graph", "tie_strengths", "undirected_version"]
+
+
+def tie_strengths(weights: list[float], weight_means: str) -> tuple[list[float], list[float]]:
+    """Each tie's strength and path length from its weight as written.
+
+    With weight_means = "strength" the strength is the weight and the length 1/weight; with
+    "distance" the length is the weight and the strength 1/weight; an unweighted network gives
+    every tie strength 1 and length 1 (Opsahl, Agneessens & Skvoretz 2010; Newman 2001)."""
+    inverse = [1.0 / w for w in weights]
+    return (weights, inverse) if weight_means == "strength" else (inverse, weights)
 
 
 def build_graph(network: CleanNetwork) -> ig.Graph:
     """Vertices in the network's node order (attribute ``name`` is the id); edges carry
-    ``weight`` (as written), ``strength`` and ``length``.
-
-    With weight_means = "strength" the strength is the weight and the length 1/weight; with
-    "distance" the length is the weight and the strength 1/weight; unweighted, both are 1
-    (Opsahl, Agneessens & Skvoretz 2010; Newman 2001).
-    """
+    ``weight`` (as written), ``strength`` and ``length`` (see ``tie_strengths``)."""
     ids = list(network.nodes.index)
     index = {node: i for i, node in enumerate(ids)}
     edges = network.edges
@@ -26,10 +31,7 @@ def build_graph(network: CleanNetwork) -> ig.Graph:
     graph["weight_means"] = network.config.weight_means
     if network.weighted:
         weights = [float(w) for w in edges["weight"]]
-        if network.config.weight_means == "strength":
-            strengths, lengths = weights, [1.0 / w for w in weights]
-        else:
-            strengths, lengths = [1.0 / w for w in weights], weights
+        strengths, lengths = tie_strengths(weights, network.config.weight_means)
     else:
         weights = strengths = lengths = [1.0] * len(pairs)
     graph.es["weight"] = weights

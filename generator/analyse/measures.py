@@ -1,5 +1,6 @@
 """Node measures: degree, strength, betweenness, closeness, harmonic, eigenvector, PageRank,
-coreness and clustering, each exactly as defined in the project's design."""
+coreness and clustering, each exactly as defined in the README (definitions and references of
+each live in ``generator.vocabulary.measures``)."""
 
 from __future__ import annotations
 
@@ -12,69 +13,20 @@ import igraph as ig
 import numpy as np
 import pandas as pd
 
+from ..vocabulary import measure
 from .graph import undirected_version
 from .seeding import seeded_igraph
 
-__all__ = ["MEASURE_INFO", "PATH_MEASURES", "MeasureInfo", "NodeMeasures", "PathSampling",
-           "node_measures"]
-
-# Measures computed from shortest paths: the ones estimated when path sources are sampled.
-PATH_MEASURES = ("betweenness", "closeness", "harmonic")
+__all__ = ["NodeMeasures", "Omission", "PathSampling", "node_measures"]
 
 
 @dataclass(frozen=True)
-class MeasureInfo:
-    title: str
-    definition: str  # the formula in words; the methods page prints it
-    references: tuple[str, ...]
-    reads: str  # "strength", "length" or "none": how the measure reads tie weights
+class Omission:
+    """Why a measure is left out of a network: a reason key (the wording lives with the
+    presentation) and, where the reason has one, a count."""
 
-
-MEASURE_INFO: dict[str, MeasureInfo] = {
-    "degree": MeasureInfo("Degree", "Number of ties at the node; in a directed network the sum of "
-                          "incoming and outgoing ties.", ("freeman1979",), "none"),
-    "in_degree": MeasureInfo("In-degree", "Number of ties pointing to the node.", ("freeman1979",), "none"),
-    "out_degree": MeasureInfo("Out-degree", "Number of ties leaving the node.", ("freeman1979",), "none"),
-    "strength": MeasureInfo("Strength", "Sum of the strengths of the node's ties (all directions).",
-                            ("opsahl2010",), "strength"),
-    "in_strength": MeasureInfo("In-strength", "Sum of the strengths of incoming ties.",
-                               ("opsahl2010",), "strength"),
-    "out_strength": MeasureInfo("Out-strength", "Sum of the strengths of outgoing ties.",
-                                ("opsahl2010",), "strength"),
-    "betweenness": MeasureInfo(
-        "Betweenness", "Share of shortest paths between other pairs that pass through the node "
-        "(Brandes' algorithm over path lengths), normalised as Freeman: raw value divided by "
-        "(n-1)(n-2)/2 in an undirected network and (n-1)(n-2) in a directed one.",
-        ("freeman1977", "brandes2001"), "length"),
-    "closeness": MeasureInfo(
-        "Closeness", "Wasserman-Faust form: ((r-1)/(n-1)) x ((r-1)/sum of path lengths from the r-1 "
-        "nodes that reach the node); 0 when no node reaches it. Directed: paths to the node.",
-        ("wasserman1994",), "length"),
-    "harmonic": MeasureInfo(
-        "Harmonic closeness", "Sum over the other nodes of 1/path length to the node (0 for nodes "
-        "that cannot reach it), divided by n-1.", ("marchiori2000", "boldi2014"), "length"),
-    "eigenvector": MeasureInfo(
-        "Eigenvector", "Leading eigenvector of the tie-strength matrix, scaled so the largest value "
-        "is 1. Directed: a node scores high when high-scoring nodes point to it. Computed only when "
-        "it is defined for the whole network: a directed network must be strongly connected, and "
-        "the ties of an undirected one must form a single component (isolates then score 0).",
-        ("bonacich1972",), "strength"),
-    "pagerank": MeasureInfo(
-        "PageRank", "Stationary share of a random walk that follows ties in proportion to their "
-        "strength and jumps to a random node with probability 0.15 (damping 0.85); nodes with no "
-        "outgoing tie spread their share over all nodes. Sums to 1.", ("brin1998",), "strength"),
-    "coreness": MeasureInfo(
-        "Coreness", "k-core number on the undirected version: the largest k such that the node "
-        "belongs to a subgraph where every node has at least k ties.", ("seidman1983",), "none"),
-    "clustering": MeasureInfo(
-        "Local clustering", "Share of pairs of the node's neighbours that are tied to each other, on "
-        "the undirected version, ignoring weights; 0 below two neighbours.", ("watts1998",), "none"),
-    "community": MeasureInfo(
-        "Community", "Community of the node in the partition kept (the best of several seeded "
-        "runs by modularity, on the undirected version with strengths); 1 is the largest, equal "
-        "sizes ordered by their first member. An isolate forms a community of its own.",
-        (), "strength"),
-}
+    reason: str
+    count: int = 0
 
 
 @dataclass(frozen=True)
@@ -91,30 +43,23 @@ class NodeMeasures:
     """One row per node (index: node id), one column per measure that applies."""
 
     table: pd.DataFrame
-    omitted: dict[str, str] = field(default_factory=dict)  # measure -> why it was left out
+    omitted: dict[str, Omission] = field(default_factory=dict)  # measure -> why it was left out
     sampling: PathSampling | None = None
 
 
-def _eigenvector_undefined(graph: ig.Graph) -> str:
-    """Why eigenvector centrality is not reported, or "" when it is.
+def _eigenvector_undefined(graph: ig.Graph) -> Omission | None:
+    """Why eigenvector centrality is not reported, or None when it is.
 
     On a network of several parts the leading eigenvector lives on one part and gives exactly zero
     to every other, which reads as "unimportant" when it means "not measured"; so it is reported
     only for a strongly connected directed network, or an undirected one whose ties form a single
     component (isolates then score 0)."""
     if graph.ecount() == 0:
-        return "the network has no ties"
+        return Omission("no_ties")
     if graph.is_directed():
-        if not graph.is_connected(mode="strong"):
-            return ("the network is directed and not strongly connected, so the leading "
-                    "eigenvector gives zero to every node outside one strong component; see "
-                    "PageRank instead")
-        return ""
+        return None if graph.is_connected(mode="strong") else Omission("not_strongly_connected")
     with_ties = sum(1 for size in graph.connected_components().sizes() if size > 1)
-    if with_ties > 1:
-        return (f"the ties form {with_ties} separate components, so the leading eigenvector gives "
-                "zero to every node outside one of them; see PageRank or harmonic closeness instead")
-    return ""
+    return Omission("several_components", with_ties) if with_ties > 1 else None
 
 
 def _freeman_betweenness(raw: list[float], n: int, directed: bool) -> list[float]:
@@ -155,7 +100,7 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
     lengths = graph.es["length"] if weighted else None
     strengths = graph.es["strength"] if weighted else None
     columns: dict[str, list[float]] = {}
-    omitted: dict[str, str] = {}
+    omitted: dict[str, Omission] = {}
 
     if directed:
         columns["degree"] = graph.degree(mode="all")
@@ -196,7 +141,7 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
     columns["harmonic"] = (inverse / (n - 1)).tolist() if n > 1 else [0.0] * n
 
     why_not = _eigenvector_undefined(graph)
-    if why_not:
+    if why_not is not None:
         omitted["eigenvector"] = why_not
     else:
         # directed=True is ignored on undirected graphs (igraph 1.0 rejects False there); ARPACK
@@ -214,7 +159,7 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
 
     table = pd.DataFrame(columns, index=pd.Index(graph.vs["name"], name="id"))
     for name in table.columns:
-        if name in ("degree", "in_degree", "out_degree", "coreness"):
+        if measure(name).whole:
             table[name] = table[name].astype("int64")
         else:
             table[name] = table[name].astype(float) + 0.0  # -0.0 from eigensolvers prints as 0.0

@@ -7,16 +7,18 @@ import sys
 import matplotlib
 
 from ..analyse import NetworkAnalysis
+from ..vocabulary import HISTOGRAM_MEASURES
 from .community_sizes import draw_communities
-from .distributions import CENTRALITY_MEASURES, draw_centrality, draw_degree
-from .figure import Figure
+from .distributions import draw_centrality, draw_degree
+from .figure import Figure, FigureSettings
 from .network_map import draw_map
 from .node_encoding import colour_nodes
 
-__all__ = ["Figure", "draw_network"]
+__all__ = ["Figure", "FigureSettings", "draw_network"]
 
 
-def draw_network(analysis: NetworkAnalysis) -> list[Figure]:
+def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()
+                 ) -> list[Figure]:
     """Every figure of one network, in page order: ``map``, ``degree``, one histogram per
     centrality measure the analysis holds (betweenness, closeness, harmonic, eigenvector,
     pagerank; a measure left out by the analysis is left out here), then ``communities``.
@@ -29,9 +31,9 @@ def draw_network(analysis: NetworkAnalysis) -> list[Figure]:
         # No display is needed; choosing Agg up front keeps a later pyplot import headless.
         # With pyplot already loaded (a notebook), its backend is left alone: we never use it.
         matplotlib.use("Agg")
-    colours = colour_nodes(analysis)
-    figures = [draw_map(analysis, colours), draw_degree(analysis)]
-    figures += [draw_centrality(analysis, measure) for measure in CENTRALITY_MEASURES
+    colours = colour_nodes(analysis, settings)
+    figures = [draw_map(analysis, settings, colours), draw_degree(analysis)]
+    figures += [draw_centrality(analysis, measure) for measure in HISTOGRAM_MEASURES
                 if measure in analysis.measures.columns]
     figures.append(draw_communities(analysis, colours))
     return figures

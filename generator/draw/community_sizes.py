@@ -8,7 +8,7 @@ from ..analyse import NetworkAnalysis
 from .figure import Figure
 from .node_encoding import NodeColours
 from .style import BAR_COLOUR, OTHER_GREY, drawing_style, figure_bytes, new_chart, quiet_axes
-from .wording import count_of, format_value, list_in_words
+from ..vocabulary import count_of, list_in_words, number
 
 __all__ = ["MAX_BARS", "draw_communities"]
 
@@ -46,7 +46,7 @@ def draw_communities(analysis: NetworkAnalysis, colours: NodeColours | None = No
         quiet_axes(ax, grid="x")
         ax.tick_params(axis="y", length=0)
         svg, png = figure_bytes(fig)
-    modularity = (f"; modularity {format_value(found.modularity)}"
+    modularity = (f"; modularity {number(found.modularity)}"
                   if found.modularity is not None else "")
     hidden = (f" Only the {MAX_BARS} largest are drawn; the other {k - MAX_BARS} hold "
               f"{count_of(sum(sizes[MAX_BARS:]), 'node')}." if k > MAX_BARS else "")

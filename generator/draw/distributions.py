@@ -8,46 +8,20 @@ import numpy as np
 from matplotlib.axes import Axes
 from matplotlib.ticker import MaxNLocator
 
-from ..analyse import PATH_MEASURES, NetworkAnalysis
+from ..analyse import NetworkAnalysis
+from ..vocabulary import PATH_MEASURES, measure as measure_entry
 from .figure import Figure
 from .style import BAR_COLOUR, INK, drawing_style, figure_bytes, new_chart, quiet_axes
-from .wording import count_of, format_value, node_name
+from ..vocabulary import count_of, node_name, number
 
-__all__ = ["CENTRALITY_MEASURES", "draw_centrality", "draw_degree"]
-
-CENTRALITY_MEASURES = ("betweenness", "closeness", "harmonic", "eigenvector", "pagerank")
-
-_DISPLAY_NAME = {
-    "betweenness": "betweenness",
-    "closeness": "closeness",
-    "harmonic": "harmonic closeness",
-    "eigenvector": "eigenvector centrality",
-    "pagerank": "PageRank",
-}
-# Axis labels and one plain-language sentence per measure, for readers new to the measures.
-_AXIS_LABEL = {
-    "betweenness": "betweenness (share of shortest paths through the node)",
-    "closeness": "closeness",
-    "harmonic": "harmonic closeness",
-    "eigenvector": "eigenvector centrality (highest node = 1)",
-    "pagerank": "PageRank (all nodes together = 1)",
-}
-_MEANING = {
-    "betweenness": "Betweenness is the share of shortest paths between other nodes that pass "
-                   "through a node; high values mark nodes that bridge parts of the network.",
-    "closeness": "Closeness is higher the shorter the paths between a node and the others.",
-    "harmonic": "Harmonic closeness averages one over the path length to every other node, so it "
-                "still works when some nodes cannot reach each other.",
-    "eigenvector": "Eigenvector centrality is high for nodes tied to other well-tied nodes.",
-    "pagerank": "PageRank is the share of time a random walk along the ties spends at a node.",
-}
+__all__ = ["draw_centrality", "draw_degree"]
 
 
 def _degree_panel(ax: Axes, values: np.ndarray, measure: str) -> None:
     top = int(values.max()) if values.size else 0
     counts = np.bincount(values.astype(int), minlength=top + 1) if values.size else np.zeros(1)
     ax.bar(np.arange(top + 1), counts, width=0.8, color=BAR_COLOUR, linewidth=0)
-    ax.set_xlabel(measure.replace("_", "-"))
+    ax.set_xlabel(measure_entry(measure).plain)
     ax.xaxis.set_major_locator(MaxNLocator(integer=True))
     ax.yaxis.set_major_locator(MaxNLocator(integer=True))
     ax.set_xlim(-0.7, top + 0.7)
@@ -55,11 +29,11 @@ def _degree_panel(ax: Axes, values: np.ndarray, measure: str) -> None:
 
 
 def _degree_words(values: np.ndarray, measure: str) -> str:
-    name = measure.replace("_", "-")
+    name = measure_entry(measure).plain
     counts = np.bincount(values.astype(int))
     common = int(counts.argmax())  # ties go to the smaller value
     return (f"{name} ranges from {int(values.min())} to {int(values.max())} (median "
-            f"{format_value(float(np.median(values)))}; most common {common}, "
+            f"{number(float(np.median(values)))}; most common {common}, "
             f"{count_of(int(counts[common]), 'node')})")
 
 
@@ -80,12 +54,12 @@ def draw_degree(analysis: NetworkAnalysis) -> Figure:
     alone = f"; {count_of(isolated, 'node')} with no ties at all" if isolated else ""
     if analysis.directed:
         alt = (f"Two bar charts of the {count_of(n, 'node')}: {words[0]}; {words[1]}{alone}.")
-        caption = ("In-degree counts the ties a node receives and out-degree the ties it sends; "
-                   "each bar shows how many nodes have that many.")
+        caption = (f"{measure_entry('in_degree').meaning} {measure_entry('out_degree').meaning} "
+                   "Each bar shows how many nodes have that many.")
     else:
         alt = f"Bar chart of the degree of {count_of(n, 'node')}: {words[0]}{alone}."
-        caption = ("Degree is the number of ties a node has; each bar shows how many nodes have "
-                   "that many.")
+        caption = (f"{measure_entry('degree').meaning} Each bar shows how many nodes have that "
+                   "many.")
     return Figure(name="degree", title=title, alt=alt, caption=caption, svg=svg, png=png)
 
 
@@ -102,7 +76,7 @@ def draw_centrality(analysis: NetworkAnalysis, measure: str) -> Figure:
     high = float(finite.max()) if finite.size else 0.0
     low = min(0.0, float(finite.min())) if finite.size else 0.0
     median = float(np.median(finite)) if finite.size else math.nan
-    title = f"{analysis.title}: distribution of {_DISPLAY_NAME[measure]}"
+    title = f"{analysis.title}: distribution of {measure_entry(measure).plain}"
     with drawing_style():
         fig, (ax,) = new_chart(6.4, 2.9, title=title)
         span = (low, high if high > low else low + 1.0)
@@ -111,9 +85,9 @@ def draw_centrality(analysis: NetworkAnalysis, measure: str) -> Figure:
         ax.set_ylim(0, max(float(counts.max()), 1.0) * 1.15)  # headroom for the key
         if finite.size:
             ax.axvline(median, color=INK, linestyle=(0, (4, 3)), linewidth=1.0,
-                       label=f"median {format_value(median)}")
+                       label=f"median {number(median)}")
             ax.legend(loc="best")
-        ax.set_xlabel(_AXIS_LABEL[measure])
+        ax.set_xlabel(measure_entry(measure).axis_label)
         ax.set_ylabel("number of nodes")
         ax.yaxis.set_major_locator(MaxNLocator(integer=True))
         quiet_axes(ax)
@@ -125,22 +99,22 @@ def draw_centrality(analysis: NetworkAnalysis, measure: str) -> Figure:
 def _centrality_alt(analysis: NetworkAnalysis, measure: str, values: np.ndarray) -> str:
     finite = np.isfinite(values)
     if not finite.any():
-        return (f"Histogram of {_DISPLAY_NAME[measure]} for {count_of(len(values), 'node')}: "
+        return (f"Histogram of {measure_entry(measure).plain} for {count_of(len(values), 'node')}: "
                 f"no values.")
     top = int(np.argmax(np.where(finite, values, -np.inf)))  # first node with the maximum
     ids = list(analysis.measures.index)
     kept = values[finite]
     q50, q75 = (float(np.quantile(kept, q)) for q in (0.5, 0.75))
-    low, high = format_value(float(kept.min())), format_value(float(kept.max()))
+    low, high = number(float(kept.min())), number(float(kept.max()))
     leader = node_name(analysis.labels[top], str(ids[top]))
-    return (f"Histogram of {_DISPLAY_NAME[measure]} for {count_of(len(values), 'node')}: values "
-            f"range from {low} to {high}; half the nodes score at most {format_value(q50)} and "
-            f"three in four at most {format_value(q75)}; the highest is {leader} with "
-            f"{format_value(float(values[top]))}.")
+    return (f"Histogram of {measure_entry(measure).plain} for {count_of(len(values), 'node')}: values "
+            f"range from {low} to {high}; half the nodes score at most {number(q50)} and "
+            f"three in four at most {number(q75)}; the highest is {leader} with "
+            f"{number(float(values[top]))}.")
 
 
 def _centrality_caption(analysis: NetworkAnalysis, measure: str) -> str:
-    text = (_MEANING[measure] + " Each bar counts the nodes in its range; the dashed line marks "
+    text = (measure_entry(measure).meaning + " Each bar counts the nodes in its range; the dashed line marks "
             "the median.")
     if analysis.directed and measure in ("closeness", "harmonic"):
         text += " In this directed network paths run along tie directions to the node."

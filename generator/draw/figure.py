@@ -1,10 +1,19 @@
-"""The Figure record every drawing function returns."""
+"""The Figure record every drawing function returns, and the settings figures are drawn with."""
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Figure"]
+__all__ = ["Figure", "FigureSettings"]
+
+
+@dataclass(frozen=True, kw_only=True)
+class FigureSettings:
+    """How one network's figures encode nodes: the node attribute (or "community") that colours
+    them and the measure that sizes them; None takes the defaults (community, degree)."""
+
+    color_by: str | None = None
+    size_by: str | None = None
 
 
 @dataclass(frozen=True)

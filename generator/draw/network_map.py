@@ -14,15 +14,15 @@ from matplotlib.colorbar import Colorbar
 from matplotlib.colors import Normalize
 from matplotlib.lines import Line2D
 
-from ..analyse import NetworkAnalysis
-from .figure import Figure
+from ..analyse import NetworkAnalysis, tie_strengths
+from .figure import Figure, FigureSettings
 from .label_placement import NodeDisc, place_labels
 from .node_encoding import (LABELLED_NODES, NodeColours, NodeSizes, colour_nodes, size_nodes,
                             top_nodes)
 from .style import (INK, MISSING_EDGE, MISSING_GREY, NODE_EDGE, PNG_DPI, QUIET_INK, TIE_GREY,
                     drawing_style, figure_bytes, new_figure)
 from .tie_geometry import arrow_shapes, tie_widths
-from .wording import count_of, format_value, list_in_words, node_name
+from ..vocabulary import count_of, list_in_words, node_name, number
 
 __all__ = ["draw_map", "label_gid"]
 
@@ -87,17 +87,29 @@ def _radii_points(sizes: NodeSizes) -> np.ndarray:
     return np.sqrt(np.array(sizes.areas, dtype=float)) / 2
 
 
+def _tie_ends(analysis: NetworkAnalysis) -> tuple[tuple[tuple[int, int], ...], tuple[float, ...]]:
+    """Every tie as a pair of node positions (node order) and its strength."""
+    index = {node: i for i, node in enumerate(analysis.nodes.index)}
+    edges = analysis.edges
+    pairs = tuple((index[s], index[t]) for s, t in zip(edges["source"], edges["target"]))
+    if not analysis.weighted:
+        return pairs, (1.0,) * len(pairs)
+    strengths, _ = tie_strengths([float(w) for w in edges["weight"]], analysis.weight_means)
+    return pairs, tuple(strengths)
+
+
 def _draw_ties(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: NodeSizes,
                frame: _Frame) -> None:
-    if not analysis.edge_pairs:
+    pairs, strengths = _tie_ends(analysis)
+    if not pairs:
         return
-    widths = tie_widths(analysis.edge_strengths, weighted=analysis.weighted)
+    widths = tie_widths(strengths, weighted=analysis.weighted)
     if not analysis.directed:
-        segments = [(tuple(xy[a]), tuple(xy[b])) for a, b in analysis.edge_pairs]
+        segments = [(tuple(xy[a]), tuple(xy[b])) for a, b in pairs]
         ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=widths, zorder=1,
                                          capstyle="round"), autolim=False)
         return
-    segments, heads, drawn = arrow_shapes(xy, analysis.edge_pairs, _radii_points(sizes), widths,
+    segments, heads, drawn = arrow_shapes(xy, pairs, _radii_points(sizes), widths,
                                           frame.points_per_unit)
     ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=drawn or [0.6],
                                      zorder=1, capstyle="butt"), autolim=False)
@@ -171,14 +183,14 @@ def _size_key(key_ax: Axes, sizes: NodeSizes) -> None:
     low, high = min(finite), max(finite)
     shown = [low] if high == low else [low, (low + high) / 2, high]
     handles = [_dot("#C8C8C8", "#7A7A7A", sizes.area_for(v)) for v in shown]
-    key_ax.legend(handles, [format_value(v) for v in shown], title=sizes.measure,
+    key_ax.legend(handles, [number(v) for v in shown], title=sizes.measure,
                   loc="lower left", bbox_to_anchor=(0.0, 0.05), borderaxespad=0.0,
                   alignment="left", labelspacing=1.1, borderpad=0.6, handletextpad=0.8)
 
 
 def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
          labelled: list[int]) -> str:
-    n, m = len(analysis.layout), len(analysis.edge_pairs)
+    n, m = len(analysis.layout), len(analysis.edges)
     kind = []
     if analysis.directed:
         kind.append("directed, arrows point from source to target")
@@ -186,13 +198,13 @@ def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
         kind.append("weighted, wider lines are stronger ties")
     kinds = f" ({'; '.join(kind)})" if kind else ""
     finite = [v for v in sizes.values if math.isfinite(v)]
-    size_range = ("" if not finite else f" (all {format_value(finite[0])})"
+    size_range = ("" if not finite else f" (all {number(finite[0])})"
                   if min(finite) == max(finite)
-                  else f" (from {format_value(min(finite))} to {format_value(max(finite))})")
+                  else f" (from {number(min(finite))} to {number(max(finite))})")
     if colours.scale is not None:
         colour_text = (f"colour shows {colours.attribute} on a scale from "
-                       f"{format_value(colours.scale.low)} (dark purple) to "
-                       f"{format_value(colours.scale.high)} (yellow)")
+                       f"{number(colours.scale.low)} (dark purple) to "
+                       f"{number(colours.scale.high)} (yellow)")
         if colours.missing:
             colour_text += f", with {count_of(colours.missing, 'node')} in grey for no value"
     else:
@@ -214,14 +226,16 @@ def _caption(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes) 
               else colours.attribute)
     arrows = " Arrows show the direction of each tie." if analysis.directed else ""
     return (f"Each circle is a node and each line a tie; bigger circles have a higher "
-            f"{sizes.measure} and colours show {colour}.{arrows} Nodes drawn close together are "
-            f"closely connected; where a node sits on the page has no meaning of its own.")
+            f"{sizes.measure} and colours show {colour}.{arrows} Read who is tied to whom, not "
+            "how far apart nodes are drawn: distances and positions in the drawing are not path "
+            "lengths and have no meaning of their own.")
 
 
-def draw_map(analysis: NetworkAnalysis, colours: NodeColours | None = None) -> Figure:
+def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings(),
+             colours: NodeColours | None = None) -> Figure:
     """The network map of ``analysis`` as a Figure named ``map``."""
-    colours = colours or colour_nodes(analysis)
-    sizes = size_nodes(analysis)
+    colours = colours or colour_nodes(analysis, settings)
+    sizes = size_nodes(analysis, settings)
     xy = np.array(analysis.layout, dtype=float).reshape(-1, 2)
     labelled = top_nodes(sizes.values, LABELLED_NODES)
     frame = _frame(xy)
@@ -242,7 +256,7 @@ def draw_map(analysis: NetworkAnalysis, colours: NodeColours | None = None) -> F
         _colour_key(key_ax, colours)
         _size_key(key_ax, sizes)
         key_ax.text(0.0, 0.0, f"{count_of(len(xy), 'node')}, "
-                    f"{count_of(len(analysis.edge_pairs), 'tie')}", fontsize=7.5,
+                    f"{count_of(len(analysis.edges), 'tie')}", fontsize=7.5,
                     color=QUIET_INK, ha="left", va="bottom", transform=key_ax.transAxes)
         svg, png = figure_bytes(fig, crop=True)  # legend text length varies
     return Figure(name="map", title=title, alt=_alt(analysis, colours, sizes, labelled),

@@ -11,6 +11,8 @@ from matplotlib import colormaps
 from matplotlib.colors import Normalize, to_hex
 
 from ..analyse import NetworkAnalysis
+from ..vocabulary import COMMUNITY
+from .figure import FigureSettings
 from .style import MISSING_GREY, OKABE_ITO, OTHER_GREY, SEQUENTIAL_COLORMAP
 
 __all__ = [
@@ -29,7 +31,7 @@ __all__ = [
 MAX_GROUP_COLOURS = len(OKABE_ITO)  # up to this many groups each get their own colour
 LABELLED_NODES = 5  # the map names this many nodes, those largest on the size measure
 DEFAULT_SIZE_MEASURE = "degree"
-DEFAULT_COLOUR = "community"
+DEFAULT_COLOUR = COMMUNITY
 _AREA_RANGE = (18.0, 420.0)  # marker areas in points^2 for networks up to _FULL_SIZE_NODES nodes
 _FULL_SIZE_NODES = 80
 
@@ -86,14 +88,14 @@ class NodeSizes:
         return _scale_areas(np.array([value]), np.array(self.values, dtype=float))[0]
 
 
-def colour_measure(analysis: NetworkAnalysis) -> str:
+def colour_measure(settings: FigureSettings) -> str:
     """The attribute that colours the nodes: ``color_by``, else the communities."""
-    return analysis.color_by or DEFAULT_COLOUR
+    return settings.color_by or DEFAULT_COLOUR
 
 
-def size_measure(analysis: NetworkAnalysis) -> str:
+def size_measure(analysis: NetworkAnalysis, settings: FigureSettings) -> str:
     """The measure that sizes the nodes: ``size_by`` when the analysis has it, else degree."""
-    wanted = analysis.size_by or DEFAULT_SIZE_MEASURE
+    wanted = settings.size_by or DEFAULT_SIZE_MEASURE
     return wanted if wanted in analysis.measures.columns else DEFAULT_SIZE_MEASURE
 
 
@@ -132,10 +134,11 @@ def colour_groups(values: list[object]) -> tuple[list[str], list[ColourGroup]]:
     return colours, groups
 
 
-def colour_nodes(analysis: NetworkAnalysis) -> NodeColours:
+def colour_nodes(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()
+                 ) -> NodeColours:
     """Colour every node by the communities or by a node attribute."""
-    attribute = colour_measure(analysis)
-    if attribute == "community":
+    attribute = colour_measure(settings)
+    if attribute == COMMUNITY:
         values: list[object] = [int(c) for c in analysis.measures["community"]]
         column = None
     else:
@@ -180,8 +183,8 @@ def _scale_areas(values: np.ndarray, reference: np.ndarray) -> np.ndarray:
     return smallest + share * (largest - smallest)
 
 
-def size_nodes(analysis: NetworkAnalysis) -> NodeSizes:
-    measure = size_measure(analysis)
+def size_nodes(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()) -> NodeSizes:
+    measure = size_measure(analysis, settings)
     values = np.array(analysis.measures[measure], dtype=float)
     areas = _scale_areas(values, values)
     return NodeSizes(measure, tuple(float(v) for v in values), tuple(float(a) for a in areas))

@@ -12,6 +12,7 @@ import pandas as pd
 
 from ..config import NetworkConfig, StudyConfig
 from ..errors import DataError, Finding
+from ..vocabulary import MEASURE_NAMES, count_of
 from .csvfile import read_table
 
 __all__ = ["CleanNetwork", "DataChecks", "natural_key", "read_network"]
@@ -89,8 +90,6 @@ def _number(text: str, decimal: str = ".") -> float | None:
     return None
 
 
-def _count(n: int, singular: str, plural: str) -> str:
-    return f"{n} {singular if n == 1 else plural}"
 
 
 def _lines(lines: list[int]) -> str:
@@ -350,7 +349,7 @@ def _mirrored_listing(kept: list[_RawTie], net: NetworkConfig, name: str, order:
         first = min(min(t.line for t in g) for g in groups.values())
         checks.add(Finding(
             "fix", name, f"every tie is listed twice, once in each direction and with the same "
-            f"weight ({_count(len(groups), 'pair', 'pairs')}), as many tools export undirected "
+            f"weight ({count_of(len(groups), 'pair', 'pairs')}), as many tools export undirected "
             "networks; each pair was read as one tie, so strengths are not doubled",
             line=first, count=len(groups)))
         return [min(g, key=lambda t: t.line) for g in groups.values()]
@@ -358,7 +357,7 @@ def _mirrored_listing(kept: list[_RawTie], net: NetworkConfig, name: str, order:
         example = min(both, key=lambda g: min(t.line for t in g))
         one, other = sorted(example, key=lambda t: t.line)[:2]
         checks.add(Finding(
-            "warning", name, f"{_count(len(both), 'pair is', 'pairs are')} listed in both "
+            "warning", name, f"{count_of(len(both), 'pair is', 'pairs are')} listed in both "
             f"directions (such as {one.source!r},{one.target!r} on line {one.line} and "
             f"{other.source!r},{other.target!r} on line {other.line}) but not every pair is; in "
             f"this undirected network both rows are one tie, so their weights were combined by "
@@ -371,7 +370,7 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
                 weighted: bool, checks: DataChecks) -> pd.DataFrame:
     loops = [t for t in ties if t.source == t.target]
     if loops:
-        checks.add(Finding("fix", name, f"{_count(len(loops), 'self-loop', 'self-loops')} removed (a tie from a "
+        checks.add(Finding("fix", name, f"{count_of(len(loops), 'self-loop', 'self-loops')} removed (a tie from a "
                            f"node to itself) on {'line' if len(loops) == 1 else 'lines'} "
                            f"{_lines([t.line for t in loops])}",
                            line=loops[0].line if len(loops) == 1 else None,
@@ -477,7 +476,7 @@ def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) 
     shown = "; ".join(" and ".join(repr(n) for n in g) for g in clashes[:MAX_LINES_LISTED])
     more = f" and {len(clashes) - MAX_LINES_LISTED} more" if len(clashes) > MAX_LINES_LISTED else ""
     checks.add(Finding(
-        "warning", name, f"{_count(len(clashes), 'set', 'sets')} of ids differ only in upper or "
+        "warning", name, f"{count_of(len(clashes), 'set', 'sets')} of ids differ only in upper or "
         f"lower case and are read as different nodes: {shown}{more}; if they are the same node, "
         "write the id the same way in every file", value=clashes[0][0], count=len(clashes)))
 
@@ -551,7 +550,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     touched = set(edges["source"]) | set(edges["target"])
     isolates = [n for n in all_ids if n not in touched]
     if isolates:
-        checks.add(Finding("note", data_name, f"{_count(len(isolates), 'isolate', 'isolates')} with no ties, kept in "
+        checks.add(Finding("note", data_name, f"{count_of(len(isolates), 'isolate', 'isolates')} with no ties, kept in "
                            f"the network: {', '.join(isolates[:MAX_LINES_LISTED])}",
                            count=len(isolates)))
     _check_display_settings(net, attribute_names, study)
@@ -560,9 +559,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
 
 
 # Columns of nodes.csv that netfolio writes itself; a node attribute may not take these names.
-RESERVED_COLUMNS = ("id", "label", "degree", "in_degree", "out_degree", "strength", "in_strength",
-                    "out_strength", "betweenness", "closeness", "harmonic", "eigenvector",
-                    "pagerank", "coreness", "clustering", "community")
+RESERVED_COLUMNS = ("id", "label", *MEASURE_NAMES)
 
 
 def _rename_reserved_columns(frame: pd.DataFrame, label_column: str | None, name: str,

@@ -9,7 +9,8 @@ import math
 import networkx as nx
 import pandas as pd
 
-from ..analyse import MEASURE_INFO, PATH_MEASURES, NetworkAnalysis
+from ..analyse import NetworkAnalysis
+from ..vocabulary import COMMUNITY, PATH_MEASURES, community_method, exact_text, measure
 
 __all__ = ["datapackage_json", "edges_csv", "graphml", "network_files", "nodes_csv", "statistics_csv"]
 
@@ -37,17 +38,8 @@ def edges_csv(analysis: NetworkAnalysis) -> bytes:
 
 
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:
-    rows = [(s.name, _number_text(s.value)) for s in analysis.statistics]
+    rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
     return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
-
-
-def _number_text(value: float | None) -> str:
-    """Counts print as whole numbers (60, not 60.0); other values at full precision."""
-    if value is None:
-        return ""
-    if isinstance(value, int) or float(value).is_integer():
-        return str(int(value))
-    return repr(float(value))
 
 
 def _plain_value(value: object) -> object | None:
@@ -81,12 +73,13 @@ def _field_type(series: pd.Series) -> str:
 
 
 def _measure_description(name: str, analysis: NetworkAnalysis) -> str:
-    if name == "community":
+    if name == COMMUNITY:
         c = analysis.communities
-        return (f"Community from {c.method} (resolution {c.resolution:g}, best of {c.runs} seeded "
-                f"runs, seed {c.seed}); 1 is the largest.")
-    info = MEASURE_INFO[name]
-    text = f"{info.title}: {info.definition}"
+        return (f"Community from {community_method(c.method).title} (resolution "
+                f"{c.resolution:g}, best of {c.runs} seeded runs, seed {c.seed}); 1 is the "
+                "largest.")
+    entry = measure(name)
+    text = f"{entry.title}: {entry.definition}"
     if analysis.sampling and name in PATH_MEASURES:
         text += (f" Estimated from {analysis.sampling.sources} sampled source nodes of "
                  f"{analysis.sampling.nodes} (Brandes & Pich 2007), seed {analysis.sampling.seed}.")

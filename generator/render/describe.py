@@ -1,37 +1,27 @@
-"""Plain words for settings and results that several pages share: titles, weights, methods."""
+"""Plain words for settings and results that several pages share: kinds, weights, methods,
+stability and the references of what ran."""
 
 from __future__ import annotations
 
-from ..analyse import MEASURE_INFO, PATH_MEASURES, STATISTIC_INFO, CommunityResult, NetworkAnalysis
+from ..analyse import CommunityResult, NetworkAnalysis
 from ..config import NetworkConfig
-from .display import is_missing, significant
+from ..vocabulary import (LAYOUT_REFERENCES, MEASURE_NAMES, PALETTE_REFERENCES, REFERENCES,
+                          SAMPLING_REFERENCES, STABILITY_REFERENCES, WEIGHT_REFERENCES, Reference,
+                          community_method, is_missing, measure, number, share, statistic)
 
 __all__ = [
-    "COMMUNITY_METHOD_TITLES", "PATH_MEASURES", "a_network", "measure_title", "network_kind",
-    "stability_reading", "statistic_title", "weight_reading", "weights_sentence",
+    "a_network", "measure_title", "method_title", "network_kind", "references_of",
+    "stability_reading", "weight_reading", "weights_sentence",
 ]
-
-COMMUNITY_METHOD_TITLES = {
-    "leiden": "Leiden",
-    "louvain": "Louvain",
-    "label-propagation": "Label propagation",
-}
 
 
 def measure_title(column: str) -> str:
-    if column in MEASURE_INFO:
-        return MEASURE_INFO[column].title
-    if column == "community":
-        return "Community"
-    return column.replace("_", " ").capitalize()
+    return measure(column).title if column in MEASURE_NAMES else column.replace("_", " ").capitalize()
 
 
-def statistic_title(name: str) -> str:
-    """``assortativity:clinic`` reads "Attribute assortativity: clinic"."""
-    base, _, attribute = name.partition(":")
-    info = STATISTIC_INFO.get(name) or STATISTIC_INFO.get(base)
-    title = info.title if info else base.replace("_", " ").capitalize()
-    return f"{title}: {attribute}" if attribute else title
+def method_title(key: str) -> str:
+    """A community method as every sentence writes it: "Leiden", "Label propagation"."""
+    return community_method(key).title
 
 
 def network_kind(analysis: NetworkAnalysis) -> str:
@@ -80,19 +70,35 @@ def stability_reading(result: CommunityResult) -> str:
         return ("Only one run was made, so agreement between runs cannot be judged; raise "
                 "[communities] runs to check how stable the communities are.")
     runs = result.runs
-    share = f"{result.best_run_share:.0%}"
+    found = share(result.best_run_share)
     if result.distinct_partitions == 1:
         return f"All {runs} runs found exactly the same communities: the split is stable."
-    if is_missing(result.mean_ari):
+    if result.mean_ari is None or is_missing(result.mean_ari):
         return (f"The {runs} runs found {result.distinct_partitions} different partitions "
-                f"({share} found this one); their agreement could not be measured.")
+                f"({found} found this one); their agreement could not be measured.")
     if result.mean_ari >= 0.9:
-        return (f"The {runs} runs agreed closely: {share} found exactly this partition and the "
+        return (f"The {runs} runs agreed closely: {found} found exactly this partition and the "
                 "others differed only slightly.")
     if result.mean_ari >= 0.7:
         return (f"The {runs} runs mostly agreed: the main groups are stable, but some nodes moved "
-                f"between communities from run to run ({share} of runs found this exact "
+                f"between communities from run to run ({found} of runs found this exact "
                 "partition).")
-    ari = significant(result.mean_ari, 2)
-    return (f"The {runs} runs disagreed (mean adjusted Rand index {ari}): this partition is one "
-            "of several about equally good ones, so read the communities as tentative.")
+    return (f"The {runs} runs disagreed (mean adjusted Rand index {number(result.mean_ari)}): this "
+            "partition is one of several about equally good ones, so read the communities as "
+            "tentative.")
+
+
+def references_of(analysis: NetworkAnalysis) -> list[Reference]:
+    """The references of every method that ran for ``analysis``, in first-use order."""
+    keys: list[str] = list(WEIGHT_REFERENCES) if analysis.weighted else []
+    for column in analysis.measures.columns:
+        keys += measure(column).references
+    if analysis.sampling:
+        keys += SAMPLING_REFERENCES
+    for stat in analysis.statistics:
+        keys += statistic(stat.name).references
+    if analysis.communities.objective is not None:  # the runs happened (the network has ties)
+        keys += community_method(analysis.communities.method).references
+        keys += STABILITY_REFERENCES
+    keys += LAYOUT_REFERENCES + PALETTE_REFERENCES  # the map's layout and colours
+    return [REFERENCES[k] for k in dict.fromkeys(keys)]

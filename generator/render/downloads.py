@@ -5,8 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from ..analyse import MEASURE_INFO
-from .describe import PATH_MEASURES, measure_title, weight_reading
+from ..vocabulary import COMMUNITY, PATH_MEASURES, count, measure
+from .describe import weight_reading
 from .inputs import NetworkPageInput
 from .site_map import DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
 
@@ -57,16 +57,14 @@ def node_columns_described(item: NetworkPageInput, nodes_file: str | None
     columns += [ColumnInfo(a, f"node attribute {source}; empty when missing")
                 for a in analysis.attributes]
     for column in analysis.measures.columns:
-        if column == "community":
+        if column == COMMUNITY:
             columns.append(ColumnInfo(column, "community number (1 = the largest community)"))
             continue
-        info = MEASURE_INFO.get(column)
-        meaning = measure_title(column)
-        if info is not None:
-            meaning += f" ({weight_reading(info.reads, analysis)})"
+        entry = measure(column)
+        meaning = f"{entry.title} ({weight_reading(entry.reads, analysis)})"
         if analysis.sampling is not None and column in PATH_MEASURES:
-            meaning += (f"; estimated from {analysis.sampling.sources:,} sampled source nodes of "
-                        f"{analysis.sampling.nodes:,}")
+            meaning += (f"; estimated from {count(analysis.sampling.sources)} sampled source "
+                        f"nodes of {count(analysis.sampling.nodes)}")
         columns.append(ColumnInfo(column, meaning))
     return tuple(columns)
 

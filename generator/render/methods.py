@@ -6,12 +6,12 @@ from dataclasses import dataclass
 from typing import Any, Iterable
 from urllib.parse import quote
 
-from ..analyse import COMMUNITY_REFERENCES, MEASURE_INFO, STATISTIC_INFO, Reference
-from .describe import (COMMUNITY_METHOD_TITLES, a_network, measure_title, weight_reading,
-                       weights_sentence)
-from .display import significant
+from ..vocabulary import (LAYOUT_REFERENCES, SAMPLING_REFERENCES, STABILITY_REFERENCES,
+                          WEIGHT_REFERENCES, Reference, community_method, measure, number,
+                          statistic)
+from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
 from .inputs import NetworkPageInput
-from .network_page import sampling_sentence
+from .network_page import omitted_measures, sampling_sentence
 from .site_map import CHECKS, PageFrame, network_page
 
 __all__ = [
@@ -19,12 +19,6 @@ __all__ = [
     "methods_context", "network_methods", "reference_entries",
 ]
 
-_STABILITY_REFERENCES = ("hubert1985", "danon2005")
-_WEIGHT_REFERENCES = ("opsahl2010", "newman2001")
-_LAYOUT_REFERENCES = ("fruchterman1991",)
-_SAMPLING_REFERENCES = ("brandes2007",)
-_COMMUNITY_DEFINITION = ("Number of the node's community in the partition described below: 1 is "
-                         "the largest community; equal sizes are ordered by their first member.")
 
 
 @dataclass(frozen=True)
@@ -149,19 +143,16 @@ def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ..
 def _statistic_methods(item: NetworkPageInput, cite: _Citations) -> tuple[StatisticMethod, ...]:
     grouped: dict[str, list[str]] = {}
     for stat in item.analysis.statistics:
-        base = stat.name if stat.name in STATISTIC_INFO else stat.name.split(":")[0]
-        grouped.setdefault(base, []).append(stat.name)
+        grouped.setdefault(statistic(stat.name).name, []).append(stat.name)
     methods = []
     for base, names in grouped.items():
-        info = STATISTIC_INFO.get(base)
-        if info is None:
-            continue
-        title = info.title
+        entry = statistic(base)
+        title = entry.title
         attributes = [n.split(":", 1)[1] for n in names if ":" in n]
         if attributes:
             title = f"{title} ({', '.join(attributes)})"
-        methods.append(StatisticMethod(title, tuple(names), info.definition,
-                                       cite.cite(info.references)))
+        methods.append(StatisticMethod(title, tuple(names), entry.definition,
+                                       cite.cite(entry.references)))
     return tuple(methods)
 
 
@@ -171,8 +162,8 @@ def _runs(runs: int) -> str:
 
 def _community_text(item: NetworkPageInput) -> tuple[tuple[tuple[str, str], ...], tuple[str, ...]]:
     result, analysis = item.analysis.communities, item.analysis
-    method = COMMUNITY_METHOD_TITLES.get(result.method, result.method)
-    resolution = significant(result.resolution)
+    method = method_title(result.method)
+    resolution = number(result.resolution)
     parameters = (("Method", method), ("Resolution", resolution), ("Runs", str(result.runs)),
                   ("Seed", str(result.seed)))
     on = "with tie strengths as weights" if analysis.weighted else "unweighted"
@@ -200,16 +191,15 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
     analysis = item.analysis
     measures = []
     for column in analysis.measures.columns:
-        info = MEASURE_INFO.get(column)
-        if info is None:
-            measures.append(MeasureMethod(column, measure_title(column), _COMMUNITY_DEFINITION
-                                          if column == "community" else "", "see Communities",
-                                          cite.cite(COMMUNITY_REFERENCES.get(
-                                              analysis.communities.method, ()))))
+        entry = measure(column)
+        if column == "community":
+            measures.append(MeasureMethod(column, entry.title, entry.definition,
+                                          "see Communities", cite.cite(community_method(
+                                              analysis.communities.method).references)))
             continue
-        measures.append(MeasureMethod(column, info.title, info.definition,
-                                      weight_reading(info.reads, analysis),
-                                      cite.cite(info.references)))
+        measures.append(MeasureMethod(column, entry.title, entry.definition,
+                                      weight_reading(entry.reads, analysis),
+                                      cite.cite(entry.references)))
     parameters, community_sentences = _community_text(item)
     pull = ", stronger ties pulling harder" if analysis.weighted else ""
     return NetworkMethods(
@@ -221,27 +211,27 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
         kind=a_network(analysis),
         cleaning=_cleaning(item, relative),
         weights=weights_sentence(item.config, analysis),
-        weight_citations=cite.cite(_WEIGHT_REFERENCES) if analysis.weighted else (),
+        weight_citations=cite.cite(WEIGHT_REFERENCES) if analysis.weighted else (),
         measures=tuple(measures),
-        omitted=tuple((measure_title(name), reason) for name, reason in analysis.omitted.items()),
+        omitted=omitted_measures(analysis),
         sampling=sampling_sentence(analysis),
-        sampling_citations=cite.cite(_SAMPLING_REFERENCES) if analysis.sampling else (),
+        sampling_citations=cite.cite(SAMPLING_REFERENCES) if analysis.sampling else (),
         statistics=_statistic_methods(item, cite),
         community_parameters=parameters,
         communities=community_sentences,
-        community_citations=cite.cite(COMMUNITY_REFERENCES.get(analysis.communities.method, ())),
+        community_citations=cite.cite(community_method(analysis.communities.method).references),
         stability=("Agreement between the kept partition and each run is measured by the adjusted "
                    "Rand index and by normalised mutual information, averaged over the runs: 1 "
                    "means every run found the same communities, values near 0 no more agreement "
                    "than chance. The share of runs that found exactly the kept partition is "
                    "reported too."),
-        stability_citations=cite.cite(_STABILITY_REFERENCES),
+        stability_citations=cite.cite(STABILITY_REFERENCES),
         layout=(f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
                 f"undirected version{pull}, started from positions drawn with the study seed "
                 f"{analysis.seed} and scaled into a square, so the same data give the same "
                 "picture. Distances in a drawing are not path lengths: read who is tied to whom, "
                 "not how far apart nodes are drawn."),
-        layout_citations=cite.cite(_LAYOUT_REFERENCES),
+        layout_citations=cite.cite(LAYOUT_REFERENCES),
         seed=analysis.seed,
         versions=tuple(analysis.versions.items()),
     )
@@ -251,7 +241,7 @@ def methods_context(frame: PageFrame, networks: list[NetworkPageInput],
                     relative_paths: dict[str, dict[str, str]], *, link_dois: bool = True
                     ) -> dict[str, Any]:
     """``relative_paths`` maps a network id to its input files as the user wrote them."""
-    references = [ref for item in networks for ref in item.analysis.references]
+    references = [ref for item in networks for ref in references_of(item.analysis)]
     cite = _Citations(references)
     return {
         "page": frame,

@@ -7,22 +7,26 @@ import re
 from dataclasses import dataclass
 from typing import Any
 
-from ..analyse import MEASURE_INFO, CommunityResult, NetworkAnalysis, Statistic
-from .describe import (COMMUNITY_METHOD_TITLES, PATH_MEASURES, a_network, measure_title,
-                       network_kind, stability_reading, statistic_title, weights_sentence)
-from .display import is_missing, shown, significant
+import pandas as pd
+
+from ..analyse import CommunityResult, NetworkAnalysis, Statistic
+from ..vocabulary import (COMMUNITY, MEASURE_NAMES, PATH_MEASURES, Reading, count, count_of,
+                          is_missing, left_out_sentence, number, omission_reason, reading, share,
+                          statistic_title, undefined_reason)
+from .describe import (a_network, measure_title, method_title, network_kind, stability_reading,
+                       weights_sentence)
 from .figures import figure_views
 from .inputs import NetworkPageInput
 from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
 
 __all__ = [
     "TOP_COUNT", "CommunityRow", "CommunityView", "NetworkFacts", "RankedNode", "StatisticRow",
-    "TopTable", "community_view", "network_context", "network_facts", "sampling_sentence",
-    "statistic_rows", "top_tables",
+    "TopTable", "community_view", "network_context", "network_facts", "omitted_measures",
+    "sampling_sentence", "statistic_rows", "top_tables",
 ]
 
 TOP_COUNT = 10
-_POSITION_FIGURES = ("degree", *MEASURE_INFO)
+_POSITION_FIGURES = MEASURE_NAMES
 
 
 @dataclass(frozen=True)
@@ -94,53 +98,35 @@ class NetworkFacts:
 
     @property
     def checks(self) -> str:
-        return f"{_count(self.fixes, 'fix', 'fixes')}, {_count(self.notes, 'note', 'notes')}"
-
-
-def _count(number: int, one: str, many: str) -> str:
-    return f"{number:,} {one if number == 1 else many}"
-
-
-def _sentence(text: str) -> str:
-    text = text.strip().strip("()").strip()
-    if not text:
-        return ""
-    text = text[0].upper() + text[1:]
-    return text if text.endswith((".", "!", "?")) else text + "."
-
-
-def _not_defined_reason(note: str) -> str:
-    # "not defined: no ties" -> "No ties."; "not defined below three nodes" reads well as it is
-    if note.lower().startswith("not defined:"):
-        note = note[len("not defined:"):]
-    return _sentence(note) or "The statistic does not apply to this network."
+        return f"{count_of(self.fixes, 'fix', 'fixes')}, {count_of(self.notes, 'note')}"
 
 
 def _anchor(name: str) -> str:
     return "statistic-" + re.sub(r"[^A-Za-z0-9_-]+", "-", name).strip("-")
 
 
-def _reading(stat: Statistic) -> str:
-    try:
-        return stat.reading()
-    except KeyError:  # a statistic without a plain-words template: show the value alone
-        return f"{statistic_title(stat.name)} is {shown(stat.value)}."
+def _reading_context(stat: Statistic, analysis: NetworkAnalysis) -> Reading:
+    attribute = stat.name.partition(":")[2]
+    numeric = bool(attribute) and attribute in analysis.nodes.columns and bool(
+        pd.api.types.is_numeric_dtype(analysis.nodes[attribute].dtype))
+    return Reading(value=float(stat.value or 0.0), attribute=attribute, numeric=numeric,
+                   directed=analysis.directed, weighted=analysis.weighted,
+                   weight_means=analysis.weight_means, steps=stat.steps)
 
 
-def statistic_rows(statistics: tuple[Statistic, ...]) -> tuple[StatisticRow, ...]:
-    """One row per statistic, in the analysis' order."""
+def statistic_rows(analysis: NetworkAnalysis) -> tuple[StatisticRow, ...]:
+    """One row per statistic, in the analysis' order, each with its plain reading."""
     rows = []
-    for stat in statistics:
+    for stat in analysis.statistics:
+        left_out = left_out_sentence(stat.left_out)
         if stat.value is None or is_missing(stat.value):
+            why = undefined_reason(stat.why) if stat.why else "The statistic does not apply."
             rows.append(StatisticRow(stat.name, _anchor(stat.name), statistic_title(stat.name),
-                                     "not defined",
-                                     _not_defined_reason(stat.note), False))
+                                     "not defined", f"{why} {left_out}".strip(), False))
             continue
-        reading = _reading(stat)
-        if stat.note:
-            reading = f"{reading} {_sentence(stat.note)}"
+        text = reading(stat.name, _reading_context(stat, analysis))
         rows.append(StatisticRow(stat.name, _anchor(stat.name), statistic_title(stat.name),
-                                 shown(stat.value), reading, True))
+                                 number(stat.value), f"{text} {left_out}".strip(), True))
     return tuple(rows)
 
 
@@ -149,7 +135,7 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
 
     def stat(name: str, fallback: Any = None) -> str:
         value = analysis.statistic(name)
-        return shown(fallback if value is None else value)
+        return number(fallback if value is None else value)
 
     return NetworkFacts(
         kind=network_kind(analysis),
@@ -157,7 +143,7 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
         nodes=stat("nodes", len(analysis.nodes)),
         ties=stat("edges", len(analysis.edges)),
         density=stat("density"),
-        communities=shown(analysis.communities.count),
+        communities=count(analysis.communities.count),
         weights=weights_sentence(item.config, analysis),
         fixes=sum(1 for f in analysis.findings if f.level == "fix"),
         notes=sum(1 for f in analysis.findings if f.level == "note"),
@@ -173,7 +159,7 @@ def _ranked(values: list[float], labels: list[str], ids: list[str], count: int
     for position, i in enumerate(order[:count], start=1):
         if position == 1 or values[i] != values[order[position - 2]]:
             rank = position
-        rows.append(RankedNode(rank, labels[i], shown(values[i]),
+        rows.append(RankedNode(rank, labels[i], number(values[i]),
                                ids[i] if ids[i] != labels[i] else ""))
     more = 0
     if len(order) > count:
@@ -189,7 +175,7 @@ def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTa
     measures = analysis.measures.reindex(analysis.nodes.index)
     tables = []
     for column in measures.columns:
-        if column == "community":
+        if column == COMMUNITY:
             continue
         values = [float(v) if not is_missing(v) else math.nan for v in measures[column].tolist()]
         rows, more = _ranked(values, labels, ids, count)
@@ -198,7 +184,7 @@ def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTa
 
 
 def _optional(value: float | None) -> str:
-    return "not defined" if is_missing(value) else significant(value, 3)
+    return "not defined" if value is None or is_missing(value) else number(value)
 
 
 def community_view(result: CommunityResult) -> CommunityView:
@@ -211,11 +197,11 @@ def community_view(result: CommunityResult) -> CommunityView:
     elif single > 1:
         single_note = (f"{single:,} nodes form communities of their own (isolates or nodes only "
                        "loosely tied to any group).")
-    rows = tuple(CommunityRow(number, size, f"{size / total:.0%}")
-                 for number, size in enumerate(result.sizes, start=1) if size > 1)
+    rows = tuple(CommunityRow(rank, size, share(size / total))
+                 for rank, size in enumerate(result.sizes, start=1) if size > 1)
     return CommunityView(
-        method=COMMUNITY_METHOD_TITLES.get(result.method, result.method),
-        resolution=significant(result.resolution),
+        method=method_title(result.method),
+        resolution=number(result.resolution),
         runs=result.runs,
         seed=result.seed,
         count=result.count,
@@ -225,10 +211,16 @@ def community_view(result: CommunityResult) -> CommunityView:
         modularity=_optional(result.modularity),
         mean_ari=_optional(result.mean_ari),
         mean_nmi=_optional(result.mean_nmi),
-        best_run_share=f"{result.best_run_share:.0%}",
+        best_run_share=share(result.best_run_share),
         distinct_partitions=result.distinct_partitions,
         reading=stability_reading(result),
     )
+
+
+def omitted_measures(analysis: NetworkAnalysis) -> tuple[tuple[str, str], ...]:
+    """(title, why) of every measure left out of this network."""
+    return tuple((measure_title(name), omission_reason(why.reason, why.count))
+                 for name, why in analysis.omitted.items())
 
 
 def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
@@ -238,8 +230,9 @@ def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
     present = [measure_title(c).lower() for c in PATH_MEASURES if c in analysis.measures.columns]
     derived = (" Betweenness centralization is computed from the estimated betweenness."
                if "betweenness" in analysis.measures.columns else "")
-    return (f"The network has {sampling.nodes:,} nodes, so {', '.join(present)} were estimated "
-            f"from shortest paths out of {sampling.sources:,} randomly chosen source nodes (seed "
+    return (f"The network has {count(sampling.nodes)} nodes, so {', '.join(present)} were "
+            f"estimated from shortest paths out of {count(sampling.sources)} randomly chosen "
+            f"source nodes (seed "
             f"{sampling.seed}) rather than from every node; values are estimates, best for "
             f"comparing nodes within this network.{derived}")
 
@@ -251,7 +244,7 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
     return {
         "page": frame,
         "facts": network_facts(item),
-        "statistics": statistic_rows(analysis.statistics),
+        "statistics": statistic_rows(analysis),
         "map_figures": tuple(f for f in figures if f.name == "map"),
         "position_figures": tuple(f for f in figures if f.name in _POSITION_FIGURES),
         "community_figures": tuple(f for f in figures if f.name == "communities"),
@@ -260,8 +253,7 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
         "top_tables": top_tables(analysis),
         "top_count": TOP_COUNT,
         "communities": community_view(analysis.communities),
-        "omitted": tuple((measure_title(name), reason)
-                         for name, reason in analysis.omitted.items()),
+        "omitted": omitted_measures(analysis),
         "sampling": sampling_sentence(analysis),
         "links": {
             "nodes": frame.href(nodes_page(item.id)),

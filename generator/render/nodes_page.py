@@ -8,7 +8,7 @@ from typing import Any
 import pandas as pd
 
 from .describe import measure_title
-from .display import shown, sort_key
+from ..vocabulary import DIGITS, number, sort_key, value_text
 from .inputs import NetworkPageInput
 from .network_page import sampling_sentence
 from .site_map import DOWNLOADS, PageFrame, network_file, network_page
@@ -59,11 +59,13 @@ def node_rows(item: NetworkPageInput) -> tuple[NodeRow, ...]:
     table = _table(item)
     numeric = [c.numeric for c in node_columns(item)[1:]]
     columns = [table.iloc[:, i].tolist() for i in range(table.shape[1])]
+    written = 1 + len(item.analysis.attributes)  # label and attributes, as written in the data
     rows = []
     for position, node in enumerate(table.index):
         values = [column[position] for column in columns]
-        rows.append(NodeRow(str(node), tuple(Cell(shown(v), sort_key(v), is_number)
-                                             for v, is_number in zip(values, numeric))))
+        rows.append(NodeRow(str(node), tuple(
+            Cell(value_text(v) if i < written else number(v), sort_key(v), is_number)
+            for i, (v, is_number) in enumerate(zip(values, numeric)))))
     return tuple(rows)
 
 
@@ -71,6 +73,7 @@ def nodes_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
     return {
         "page": frame,
         "network_title": item.title,
+        "digits": DIGITS,
         "columns": node_columns(item),
         "rows": node_rows(item),
         "sampling": sampling_sentence(item.analysis),

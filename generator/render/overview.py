@@ -8,7 +8,7 @@ from typing import Any
 from markupsafe import Markup
 
 from .describe import network_kind
-from .display import shown
+from ..vocabulary import count, number
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page, nodes_page
 
@@ -50,11 +50,11 @@ def glance_rows(frame: PageFrame, networks: list[NetworkPageInput]) -> tuple[Gla
             title=item.title,
             href=frame.href(network_page(item.id)),
             nodes_href=frame.href(nodes_page(item.id)),
-            nodes=shown(len(analysis.nodes) if nodes is None else nodes),
-            ties=shown(len(analysis.edges) if ties is None else ties),
+            nodes=count(len(analysis.nodes) if nodes is None else int(nodes)),
+            ties=count(len(analysis.edges) if ties is None else int(ties)),
             kind=network_kind(analysis),
-            density="not defined" if density is None else shown(density),
-            communities=shown(analysis.communities.count),
+            density="not defined" if density is None else number(density),
+            communities=count(analysis.communities.count),
         ))
     return tuple(rows)
 

@@ -1,0 +1,143 @@
+"""How numbers, shares, counts and lists are written for readers: one set of rules for every page,
+figure and message. Full precision lives in the CSV downloads (``exact_text``)."""
+
+from __future__ import annotations
+
+import math
+from typing import Any, Sequence
+
+import numpy as np
+import pandas as pd
+
+__all__ = [
+    "DIGITS",
+    "MISSING",
+    "count",
+    "count_of",
+    "exact_text",
+    "is_missing",
+    "list_in_words",
+    "node_name",
+    "number",
+    "plural",
+    "share",
+    "signed",
+    "sort_key",
+    "value_text",
+]
+
+MISSING = "\u2014"  # an em dash marks a value that is not there
+DIGITS = 3  # significant digits of every rounded number a reader sees
+
+
+def is_missing(value: Any) -> bool:
+    """True for None, NaN and pandas' NA; never raises on arrays or text."""
+    if value is None:
+        return True
+    try:
+        return bool(pd.isna(value))
+    except (TypeError, ValueError):
+        return False
+
+
+def number(value: Any, digits: int = DIGITS) -> str:
+    """A measure or statistic as a reader would write it: whole numbers in full with thousands
+    separators, others to ``digits`` significant digits, never in exponent form
+    (0.000146, not 1.46e-04); missing values as an em dash."""
+    if is_missing(value):
+        return MISSING
+    x = float(value)
+    if math.isinf(x):
+        return "\u221e" if x > 0 else "-\u221e"
+    if x.is_integer() and abs(x) < 1e15:
+        return f"{int(x):,}"
+    rounded = float(f"{x:.{digits}g}")  # round first, so 9.9996 becomes 10.0 before formatting
+    if rounded.is_integer() and abs(rounded) >= 10 ** (digits - 1):
+        return f"{int(rounded):,}"
+    text = np.format_float_positional(rounded, precision=digits, unique=False, fractional=False,
+                                      trim="-")
+    return "0" if text in ("0", "-0") else text
+
+
+def signed(value: float, digits: int = 2) -> str:
+    """A correlation-like value with a fixed number of decimals: 0.14, -0.06, never -0.00."""
+    text = f"{value:.{digits}f}"
+    return text[1:] if text.startswith("-") and float(text) == 0 else text
+
+
+def share(value: float) -> str:
+    """A share as a whole percentage; a share that is neither 0 nor 1 never rounds to 0% or 100%."""
+    percent = round(value * 100)
+    if percent == 0 and value > 0:
+        return "under 1%"
+    if percent == 100 and value < 1:
+        return "over 99%"
+    return f"{percent}%"
+
+
+def count(n: int) -> str:
+    """A count with thousands separators: 1,234."""
+    return f"{int(n):,}"
+
+
+def plural(n: int, singular: str, many: str | None = None) -> str:
+    """The word alone: ``node`` for 1, ``nodes`` otherwise."""
+    return singular if n == 1 else (many or singular + "s")
+
+
+def count_of(n: int, singular: str, many: str | None = None) -> str:
+    """``1 node``, ``3 nodes``, ``1,200 communities``."""
+    return f"{count(n)} {plural(n, singular, many)}"
+
+
+def list_in_words(items: Sequence[str], *, limit: int = 10) -> str:
+    """``a, b and c``; beyond ``limit`` items, ``a, b, ... and 4 more``."""
+    items = list(items)
+    if len(items) > limit:
+        return ", ".join(items[:limit]) + f" and {len(items) - limit} more"
+    if len(items) <= 1:
+        return "".join(items)
+    return ", ".join(items[:-1]) + " and " + items[-1]
+
+
+def value_text(value: Any) -> str:
+    """A node attribute as page text: whole numbers as written (2015, not 2,015: years and codes),
+    other numbers rounded, text as it is, missing values as an em dash."""
+    if is_missing(value):
+        return MISSING
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if pd.api.types.is_integer(value):
+        return str(int(value))
+    if pd.api.types.is_float(value):
+        x = float(value)
+        return str(int(x)) if x.is_integer() and abs(x) < 1e15 else number(x)
+    return str(value)
+
+
+def sort_key(value: Any) -> str:
+    """The exact value as text for the table sorter; empty when missing."""
+    if is_missing(value):
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "1" if value else "0"
+    if pd.api.types.is_integer(value):
+        return str(int(value))
+    if pd.api.types.is_float(value):
+        return repr(float(value))
+    return str(value)
+
+
+def exact_text(value: float | None) -> str:
+    """A value for a CSV file: counts as whole numbers (60, not 60.0), others at full precision,
+    missing as empty."""
+    if value is None:
+        return ""
+    if isinstance(value, int) or float(value).is_integer():
+        return str(int(value))
+    return repr(float(value))
+
+
+def node_name(label: str, node_id: str) -> str:
+    """A node as a sentence names it: its label, with the id when the two differ."""
+    return label if label == node_id else f"{label} ({node_id})"

@@ -1,0 +1,252 @@
+"""Every network statistic netfolio writes: its row name in statistics.csv, title, definition,
+references, and its plain reading for a non-specialist as a function of the value.
+
+Readings claim no more than the number supports: a correlation or assortativity below 0.1 in size
+reads as "no clear tendency", and none of them is presented as more than chance, since no test
+against chance backs it."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
+
+from .formatting import count_of, number, share
+
+__all__ = [
+    "NEUTRAL_BELOW",
+    "STATISTICS",
+    "UNDEFINED_REASONS",
+    "Reading",
+    "StatisticEntry",
+    "reading",
+    "statistic",
+    "statistic_title",
+    "left_out_sentence",
+    "undefined_reason",
+]
+
+NEUTRAL_BELOW = 0.1  # |r| below this reads as no clear tendency
+_MODERATE, _STRONG = 0.3, 0.5  # |r| bands: weak below 0.3, moderate below 0.5, strong above
+_CLEAR_MODULARITY, _STRONG_MODULARITY = 0.3, 0.4
+
+
+@dataclass(frozen=True, kw_only=True)
+class Reading:
+    """What a reading may use: the value and the facts of the network it belongs to."""
+
+    value: float
+    attribute: str = ""  # for assortativity:<attribute>
+    numeric: bool = False  # the attribute is numeric (Pearson form) rather than categories
+    directed: bool = False
+    weighted: bool = False
+    weight_means: str = "strength"
+    steps: float | None = None  # the same path statistic counting each tie as one step
+
+
+@dataclass(frozen=True, kw_only=True)
+class StatisticEntry:
+    """One row of statistics.csv (``name`` may be a prefix: ``assortativity`` covers
+    ``assortativity:<attribute>``)."""
+
+    name: str
+    title: str
+    definition: str
+    read: Callable[[Reading], str]
+    references: tuple[str, ...] = ()
+    whole: bool = False
+
+
+def _counted(one: str, many: str) -> Callable[[Reading], str]:
+    def read(r: Reading) -> str:
+        return one if r.value == 1 else many.format(value=number(r.value))
+    return read
+
+
+def _percent(template: str) -> Callable[[Reading], str]:
+    def read(r: Reading) -> str:
+        return template.format(percent=share(r.value))
+    return read
+
+
+def _length_unit(r: Reading) -> str:
+    if r.weight_means == "strength":
+        return "in path length (1/weight per tie)"
+    return "in path length (the weight of each tie)"
+
+
+def _steps(value: float) -> str:
+    return "1 step" if value == 1 else f"{number(value)} steps"
+
+
+def _diameter(r: Reading) -> str:
+    if not r.weighted:
+        return f"No two connected nodes are more than {_steps(r.value)} (ties) apart."
+    text = f"The farthest two connected nodes are {number(r.value)} apart {_length_unit(r)}."
+    if r.steps is not None:
+        text += (f" Counting every tie as one step, no two connected nodes are more than "
+                 f"{_steps(r.steps)} apart.")
+    return text
+
+
+def _average_path(r: Reading) -> str:
+    if not r.weighted:
+        return f"Connected pairs are on average {_steps(r.value)} (ties) apart."
+    text = f"Connected pairs are on average {number(r.value)} apart {_length_unit(r)}."
+    if r.steps is not None:
+        text += f" Counting every tie as one step, they are on average {_steps(r.steps)} apart."
+    return text
+
+
+def _strength_word(r: float) -> str:
+    size = abs(r)
+    return "strongly" if size >= _STRONG else "clearly" if size >= _MODERATE else "slightly"
+
+
+def _degree_assortativity(r: Reading) -> str:
+    shown = number(r.value)
+    if abs(r.value) < NEUTRAL_BELOW:
+        return f"Ties show no clear tendency to join nodes of similar or of different degree (r = {shown})."
+    if r.value > 0:
+        return (f"Ties lean {_strength_word(r.value)} towards joining nodes of similar degree "
+                f"(r = {shown}); this is not tested against chance.")
+    return (f"Ties lean {_strength_word(r.value)} towards joining well-tied nodes with "
+            f"little-tied ones (r = {shown}); this is not tested against chance.")
+
+
+def _attribute_assortativity(r: Reading) -> str:
+    shown = number(r.value)
+    alike = f"with similar {r.attribute}" if r.numeric else f"of the same {r.attribute}"
+    unlike = f"with different {r.attribute}" if r.numeric else f"of a different {r.attribute}"
+    if abs(r.value) < NEUTRAL_BELOW:
+        return f"Ties show no clear tendency to join nodes {alike} or {unlike} (r = {shown})."
+    side = alike if r.value > 0 else unlike
+    return (f"Ties lean {_strength_word(r.value)} towards joining nodes {side} (r = {shown}); "
+            "this is not tested against chance.")
+
+
+def _modularity(r: Reading) -> str:
+    shown = number(r.value)
+    if r.value >= _STRONG_MODULARITY:
+        level = "A strong community structure"
+    elif r.value >= _CLEAR_MODULARITY:
+        level = "A clear community structure"
+    else:
+        level = "A weak community structure"
+    return (f"{level}: Q = {shown}, where values above about 0.3 are usually read as clear "
+            "communities (more ties inside them than across).")
+
+
+def _centralization(r: Reading) -> str:
+    return f"{number(r.value)} on a scale from 0 (all nodes equal) to 1 (a star)."
+
+
+STATISTICS: tuple[StatisticEntry, ...] = (
+    StatisticEntry(name="nodes", title="Nodes", whole=True,
+              definition="Number of nodes n, isolates included.",
+              read=_counted("One node is in the network.", "{value} nodes are in the network.")),
+    StatisticEntry(name="edges", title="Ties", whole=True,
+              definition="Number of ties m after cleaning (repeats merged, self-loops removed).",
+              read=_counted("One distinct tie remains after cleaning.",
+                            "{value} distinct ties remain after cleaning.")),
+    StatisticEntry(name="density", title="Density", references=("wasserman1994",),
+              definition="m / (n(n-1)/2) undirected, m / (n(n-1)) directed.",
+              read=_percent("{percent} of all possible ties are present.")),
+    StatisticEntry(name="reciprocity", title="Reciprocity", references=("wasserman1994",),
+              definition="Share of directed ties whose reverse tie exists.",
+              read=_percent("{percent} of ties are returned.")),
+    StatisticEntry(name="transitivity", title="Transitivity", references=("wasserman1994",),
+              definition="3 x triangles / connected triples, on the undirected version.",
+              read=_percent("When two nodes share a neighbour, they are tied to each other "
+                            "{percent} of the time.")),
+    StatisticEntry(name="average_clustering", title="Average clustering", references=("watts1998",),
+              definition="Mean local clustering over all nodes (0 for nodes with fewer than two "
+              "neighbours).",
+              read=_percent("On average {percent} of the pairs of a node's neighbours are tied "
+                            "to each other.")),
+    StatisticEntry(name="components", title="Components", whole=True,
+              definition="Connected components (weakly connected when directed); isolates count "
+              "as components.",
+              read=_counted("The network is one connected whole.",
+                            "The network falls into {value} separate parts.")),
+    StatisticEntry(name="strong_components", title="Strong components", whole=True,
+              definition="Strongly connected components: sets in which every node reaches every "
+              "other along tie directions.",
+              read=_counted("Everyone can reach everyone along tie directions.",
+                            "{value} sets within which everyone can reach everyone along tie "
+                            "directions (single nodes count as sets).")),
+    StatisticEntry(name="largest_component_share", title="Largest component share",
+              definition="Nodes in the largest component / n.",
+              read=_percent("{percent} of nodes are in the largest connected part.")),
+    StatisticEntry(name="diameter", title="Diameter",
+              definition="Longest shortest path over pairs joined by a path, in path lengths.",
+              read=_diameter),
+    StatisticEntry(name="average_path_length", title="Average path length",
+              definition="Mean shortest path length over ordered pairs joined by a path.",
+              read=_average_path),
+    StatisticEntry(name="degree_assortativity", title="Degree assortativity",
+              references=("newman2002",),
+              definition="Newman's coefficient of degree correlation across ties (directed: "
+              "out-degree of the source against in-degree of the target), unweighted.",
+              read=_degree_assortativity),
+    StatisticEntry(name="assortativity", title="Attribute assortativity", references=("newman2003",),
+              definition="Newman's nominal assortativity for text attributes, the numeric "
+              "(Pearson) form for numbers; directed networks use the directed mixing matrix. "
+              "Nodes missing the attribute are left out.",
+              read=_attribute_assortativity),
+    StatisticEntry(name="modularity", title="Modularity", references=("newman2004",),
+              definition="Newman-Girvan modularity (resolution 1) of the reported communities, on "
+              "the undirected version with strengths.", read=_modularity),
+    StatisticEntry(name="communities", title="Communities", whole=True,
+              definition="Number of communities in the reported partition (isolates form their "
+              "own).",
+              read=_counted("One community was found.", "{value} communities were found.")),
+    StatisticEntry(name="degree_centralization", title="Degree centralization",
+              references=("freeman1979",),
+              definition="Freeman: sum(max degree - degree) / ((n-1)(n-2)) on the undirected "
+              "version; 1 for a star, 0 when all degrees are equal.", read=_centralization),
+    StatisticEntry(name="betweenness_centralization", title="Betweenness centralization",
+              references=("freeman1979",),
+              definition="Freeman: sum(max - betweenness) / (n-1) over normalised betweenness; 1 "
+              "for a star.", read=_centralization),
+)
+
+_BY_NAME = {s.name: s for s in STATISTICS}
+
+
+def statistic(name: str) -> StatisticEntry:
+    """The entry of a statistics.csv row name; ``assortativity:clinic`` finds ``assortativity``."""
+    return _BY_NAME[name] if name in _BY_NAME else _BY_NAME[name.partition(":")[0]]
+
+
+def statistic_title(name: str) -> str:
+    """``assortativity:clinic`` reads "Attribute assortativity: clinic"."""
+    attribute = name.partition(":")[2]
+    title = statistic(name).title
+    return f"{title}: {attribute}" if attribute else title
+
+
+def reading(name: str, context: Reading) -> str:
+    """The plain one-line reading of a defined statistic."""
+    return statistic(name).read(context)
+
+
+# Why a statistic has no value, by the reason key the analysis gives.
+UNDEFINED_REASONS = {
+    "fewer_than_two_nodes": "The network has fewer than two nodes.",
+    "below_three_nodes": "It needs at least three nodes.",
+    "no_ties": "The network has no ties.",
+    "no_two_neighbours": "No node has two neighbours.",
+    "no_valued_ties": "No ties join nodes that have a value.",
+    "one_value": "Every node has the same value.",
+    "no_variance": "The mixing pattern has no variance.",
+    "constant_degrees": "The degrees at the ends of ties do not vary.",
+}
+
+
+def undefined_reason(key: str) -> str:
+    return UNDEFINED_REASONS[key]
+
+
+def left_out_sentence(count: int) -> str:
+    """Said after an assortativity that left nodes without a value out."""
+    return f"{count_of(count, 'node')} without a value left out." if count else ""
