@@ -8,7 +8,7 @@ import re
 import sys
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import Any, Literal, Union
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -16,12 +16,17 @@ else:  # pragma: no cover - exercised only on Python 3.10
     import tomli as tomllib
 
 from .errors import ConfigError
+from .vocabulary import COMMUNITY_METHODS as METHOD_ENTRIES
 from .vocabulary import SIZE_MEASURES, measure
 
 __all__ = [
     "CommunitiesConfig",
+    "EdgeListSource",
+    "MatrixSource",
     "MeasuresConfig",
+    "NETWORK_KEYS",
     "NetworkConfig",
+    "NetworkSource",
     "SharingConfig",
     "SignificanceConfig",
     "SiteConfig",
@@ -30,7 +35,7 @@ __all__ = [
 ]
 
 STUDY_FILE = "study.toml"
-COMMUNITY_METHODS = ("leiden", "louvain", "label-propagation")
+COMMUNITY_METHODS = tuple(m.key for m in METHOD_ENTRIES)
 DUPLICATE_RULES = ("sum", "mean", "max")
 WEIGHT_MEANINGS = ("strength", "distance")
 DELIMITERS = (",", ";", "\t", "|")
@@ -46,20 +51,46 @@ DEFAULT_PATH_SAMPLE_SOURCES = 500
 
 
 @dataclass(frozen=True, kw_only=True)
+class EdgeListSource:
+    """An edge list: one row per tie, in the columns ``source`` and ``target`` (and ``weight``)."""
+
+    path: Path
+    source: str = "source"
+    target: str = "target"
+    weight: str | None = None
+    kind: Literal["edges"] = "edges"
+
+
+@dataclass(frozen=True, kw_only=True)
+class MatrixSource:
+    """An adjacency matrix: labels in the header row and first column, rows send ties, a cell is
+    the tie's weight."""
+
+    path: Path
+    kind: Literal["matrix"] = "matrix"
+
+
+NetworkSource = Union[EdgeListSource, MatrixSource]
+
+# The keys a [[network]] table may hold (the study.toml contract).
+NETWORK_KEYS = (
+    "id", "title", "edges", "matrix", "nodes", "node_id", "label", "source", "target", "directed",
+    "weight", "weight_means", "duplicates", "two_mode", "modes", "series", "wave", "color_by",
+    "size_by", "delimiter", "decimal",
+)
+
+
+@dataclass(frozen=True, kw_only=True)
 class NetworkConfig:
     """One ``[[network]]`` table: where its data are and how to read them."""
 
     id: str
     title: str
-    edges: Path | None = None
-    matrix: Path | None = None
+    data: NetworkSource
     nodes: Path | None = None
     node_id: str = "id"
     label: str | None = None
-    source: str = "source"
-    target: str = "target"
     directed: bool = False
-    weight: str | None = None
     weight_means: str = "strength"
     duplicates: str = "sum"
     two_mode: bool = False
@@ -73,7 +104,20 @@ class NetworkConfig:
 
     @property
     def data_file(self) -> Path:
-        return self.edges if self.edges is not None else self.matrix  # type: ignore[return-value]
+        return self.data.path
+
+    @property
+    def edges(self) -> Path | None:
+        return self.data.path if isinstance(self.data, EdgeListSource) else None
+
+    @property
+    def matrix(self) -> Path | None:
+        return self.data.path if isinstance(self.data, MatrixSource) else None
+
+    @property
+    def weight(self) -> str | None:
+        """The edge-list weight column; None for an unweighted list and for a matrix."""
+        return self.data.weight if isinstance(self.data, EdgeListSource) else None
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -223,8 +267,7 @@ def _existing_file(root: Path, raw: str, key: str) -> Path:
 
 def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     dotted = f"network[{index + 1}]"
-    allowed = tuple(f.name for f in NetworkConfig.__dataclass_fields__.values())
-    t = _Table(data, dotted, allowed)
+    t = _Table(data, dotted, NETWORK_KEYS)
     net_id = t.get("id", str, required=True)
     if not _ID.fullmatch(net_id):
         raise ConfigError(f"'{net_id}' may hold only a-z, 0-9 and '-'", key=f"{dotted}.id")
@@ -282,18 +325,20 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     if size_by is not None and edges is not None and weight is None and measure(size_by).weighted_only:
         raise ConfigError(f"'{size_by}' needs a weight column; this network is unweighted, use "
                           f"'{size_by.replace('strength', 'degree')}'", key=f"{dotted}.size_by")
+    source_of_ties: NetworkSource
+    if edges is not None:
+        source_of_ties = EdgeListSource(path=_existing_file(root, edges, f"{dotted}.edges"),
+                                        source=source, target=target, weight=weight)
+    else:
+        source_of_ties = MatrixSource(path=_existing_file(root, matrix, f"{dotted}.matrix"))
     return NetworkConfig(
         id=net_id,
         title=title.strip(),
-        edges=_existing_file(root, edges, f"{dotted}.edges") if edges is not None else None,
-        matrix=_existing_file(root, matrix, f"{dotted}.matrix") if matrix is not None else None,
+        data=source_of_ties,
         nodes=_existing_file(root, nodes, f"{dotted}.nodes") if nodes is not None else None,
         node_id=t.get("node_id", str, "id"),
         label=label,
-        source=source,
-        target=target,
         directed=directed,
-        weight=weight,
         weight_means=t.choice("weight_means", WEIGHT_MEANINGS, "strength"),
         duplicates=t.choice("duplicates", DUPLICATE_RULES, "sum"),
         two_mode=two_mode,

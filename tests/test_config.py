@@ -11,6 +11,8 @@ import pytest
 from conftest import study_toml, write_study
 from generator.config import (
     CommunitiesConfig,
+    EdgeListSource,
+    MatrixSource,
     MeasuresConfig,
     SharingConfig,
     SiteConfig,
@@ -57,7 +59,9 @@ def test_minimal_study_loads_with_documented_defaults(tmp_path):
     (network,) = study.networks
     assert network.id == "advice" and network.title == "advice"
     assert network.edges == root / "data" / "edges.csv" and network.matrix is None
-    assert (network.source, network.target, network.node_id) == ("source", "target", "id")
+    assert network.data == EdgeListSource(path=root / "data" / "edges.csv", source="source",
+                                          target="target", weight=None)
+    assert network.node_id == "id"
     assert network.directed is False and network.weight is None
     assert (network.weight_means, network.duplicates) == ("strength", "sum")
 
@@ -419,3 +423,11 @@ def test_delimiter_and_decimal_are_read_and_checked(tmp_path):
     error = config_error(study_with(tmp_path / "clash", networks=[net(decimal=",")]))
     assert error.key == "network[1].decimal"
     assert 'set delimiter = ";"' in str(error)
+
+
+def test_an_adjacency_matrix_is_its_own_kind_of_source(tmp_path):
+    root = write_study(tmp_path, networks=[{"id": "m", "matrix": "data/m.csv"}],
+                       files={"data/m.csv": ",a,b\na,0,1\nb,1,0\n"})
+    (network,) = load_study(root).networks
+    assert network.data == MatrixSource(path=tmp_path.resolve() / "data" / "m.csv")
+    assert (network.edges, network.weight) == (None, None)

@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from ..config import NetworkConfig, StudyConfig
+from ..config import EdgeListSource, MatrixSource, NetworkConfig, StudyConfig
 from ..errors import DataError, Finding
 from ..vocabulary import MEASURE_NAMES, count_of
 from .csvfile import read_table
@@ -101,10 +101,10 @@ def _lines(lines: list[int]) -> str:
 # Node list
 
 
-def _read_node_list(net: NetworkConfig, name: str, checks: DataChecks
+def _read_node_list(net: NetworkConfig, path: Path, name: str, checks: DataChecks
                     ) -> tuple[pd.DataFrame, dict[str, int]]:
     """The node list indexed by id (all text, file order) and the line of each id."""
-    table = read_table(net.nodes, name, delimiter=net.delimiter)  # type: ignore[arg-type]
+    table = read_table(path, name, delimiter=net.delimiter)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
@@ -211,16 +211,18 @@ def _all_numbers(rows: tuple[tuple[str, ...], ...], index: int, decimal: str) ->
     return bool(filled) and all(_number(v, decimal) is not None for v in filled)
 
 
-def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_RawTie]:
-    table = read_table(net.edges, name, delimiter=net.delimiter)  # type: ignore[arg-type]
+def _read_edge_list(net: NetworkConfig, edge_list: EdgeListSource, name: str, checks: DataChecks
+                    ) -> list[_RawTie]:
+    table = read_table(edge_list.path, name, delimiter=net.delimiter)
     checks.findings += table.findings
-    columns = [net.source, net.target] + ([net.weight] if net.weight else [])
+    columns = [edge_list.source, edge_list.target] + ([edge_list.weight] if edge_list.weight else [])
     table.require(*columns, what="edge list")
     _note_unused_columns(table.header, table.rows, columns, net, name, checks)
     table.refuse_control_characters(*columns)
-    checks.findings += table.trimmed_findings(net.source, net.target)
-    s, t = table.column(net.source), table.column(net.target)
-    w = table.column(net.weight) if net.weight else None
+    checks.findings += table.trimmed_findings(edge_list.source, edge_list.target)
+    s, t = table.column(edge_list.source), table.column(edge_list.target)
+    weight_column = edge_list.weight
+    w = table.column(weight_column) if weight_column else None
     for row, line in list(zip(table.rows, table.lines))[:HEADER_LIKE_ROWS]:
         code = next((i for i in (s, t, w) if i is not None and _IMPORT_CODE.match(row[i])), None)
         if code is not None:
@@ -234,19 +236,19 @@ def _read_edge_list(net: NetworkConfig, name: str, checks: DataChecks) -> list[_
     zero_lines = []
     for row, line in zip(table.rows, table.lines):
         source, target = row[s], row[t]
-        for column, value in ((net.source, source), (net.target, target)):
+        for column, value in ((edge_list.source, source), (edge_list.target, target)):
             if value == "":
                 checks.add(Finding("error", name, "a tie has an empty node id", line=line,
                                    column=column, value=value))
         weight = 1.0
-        if w is not None:
-            checked = _check_weight(row[w], net, name, line, net.weight, checks)  # type: ignore[arg-type]
+        if w is not None and weight_column is not None:
+            checked = _check_weight(row[w], net, name, line, weight_column, checks)
             if checked is None:
                 continue
             if checked == 0:
                 zero_lines.append(line)
                 checks.add(Finding("error", name, _zero_weight_reason(net), line=line,
-                                   column=net.weight, value=row[w]))
+                                   column=weight_column, value=row[w]))
                 continue
             weight = checked
         if source and target:
@@ -262,9 +264,10 @@ def _zero_weight_reason(net: NetworkConfig) -> str:
             "remove the row or give a positive distance")
 
 
-def _read_matrix(net: NetworkConfig, name: str, checks: DataChecks) -> tuple[list[_RawTie], list[str], bool]:
+def _read_matrix(net: NetworkConfig, matrix: MatrixSource, name: str, checks: DataChecks
+                 ) -> tuple[list[_RawTie], list[str], bool]:
     """Rows are senders (source), columns receivers (target); a cell is the tie's weight."""
-    table = read_table(net.matrix, name, delimiter=net.delimiter, row_labels=True)  # type: ignore[arg-type]
+    table = read_table(matrix.path, name, delimiter=net.delimiter, row_labels=True)
     checks.findings += table.findings
     table.refuse_control_characters(*table.header)
     col_labels = list(table.header[1:])
@@ -487,18 +490,18 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     data_name = study.relative(net.data_file)
     node_frame = None
     node_lines: dict[str, int] = {}
+    nodes_name = study.relative(net.nodes) if net.nodes is not None else data_name
     if net.nodes is not None:
-        node_frame, node_lines = _read_node_list(net, study.relative(net.nodes), checks)
-    if net.edges is not None:
-        ties = _read_edge_list(net, data_name, checks)
-        weighted = net.weight is not None
+        node_frame, node_lines = _read_node_list(net, net.nodes, nodes_name, checks)
+    if isinstance(net.data, EdgeListSource):
+        ties = _read_edge_list(net, net.data, data_name, checks)
+        weighted = net.data.weight is not None
         listed = [t.source for t in ties] + [t.target for t in ties]
     else:
-        ties, listed, weighted = _read_matrix(net, data_name, checks)
+        ties, listed, weighted = _read_matrix(net, net.data, data_name, checks)
     checks.raise_if_errors()
     if node_frame is not None:
-        _refuse_extra_header_rows(node_frame, node_lines, set(listed), net,
-                                  study.relative(net.nodes), checks)  # type: ignore[arg-type]
+        _refuse_extra_header_rows(node_frame, node_lines, set(listed), net, nodes_name, checks)
     if not ties and node_frame is None:
         raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
                                 "the network would be empty"))

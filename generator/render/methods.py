@@ -6,6 +6,7 @@ from dataclasses import dataclass
 from typing import Any, Iterable
 from urllib.parse import quote
 
+from ..config import EdgeListSource
 from ..vocabulary import (LAYOUT_REFERENCES, SAMPLING_REFERENCES, STABILITY_REFERENCES,
                           WEIGHT_REFERENCES, Reference, community_method, measure, number,
                           statistic)
@@ -109,13 +110,14 @@ def reference_entries(references: Iterable[Reference], *, link_dois: bool = True
 def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ...]:
     config, analysis = item.config, item.analysis
     data = relative.get("data", "")
-    if config.matrix is not None:
+    if isinstance(config.data, EdgeListSource):
+        source = config.data
+        weight = f", weight '{source.weight}'" if source.weight else ""
+        read = (f"Ties were read from the edge list {data} (columns '{source.source}' and "
+                f"'{source.target}'{weight}).")
+    else:
         read = (f"Ties were read from the adjacency matrix {data} (rows send, columns receive; a "
                 "cell is the tie's weight, an empty cell or 0 means no tie).")
-    else:
-        weight = f", weight '{config.weight}'" if config.weight else ""
-        read = (f"Ties were read from the edge list {data} (columns '{config.source}' and "
-                f"'{config.target}'{weight}).")
     if "nodes" in relative:
         read += (f" Node attributes came from {relative['nodes']} (id column '{config.node_id}'"
                  + (f", label column '{config.label}'" if config.label else "") + ").")
