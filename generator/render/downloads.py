@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
 
 from ..vocabulary import COMMUNITY, PATH_MEASURES, count, measure
 from .describe import weight_reading
 from .inputs import NetworkPageInput
 from .site_map import DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
 
-__all__ = ["ColumnInfo", "DownloadFile", "FigureDownload", "NetworkDownloads",
+__all__ = ["ColumnInfo", "DownloadFile", "DownloadsPage", "FigureDownload", "NetworkDownloads",
            "downloads_context", "network_downloads", "node_columns_described"]
 
 
@@ -113,14 +112,23 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
     return NetworkDownloads(item.id, item.title, f"network-{item.id}", files, figures)
 
 
+@dataclass(frozen=True)
+class DownloadsPage:
+    """Everything ``downloads.html`` shows."""
+
+    page: PageFrame
+    networks: tuple[NetworkDownloads, ...]
+    site_files: tuple[DownloadFile, ...]
+
+
 def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
-                      node_files: dict[str, str]) -> dict[str, Any]:
+                      node_files: dict[str, str]) -> DownloadsPage:
     """``node_files`` maps a network id to its node list as the user wrote the path."""
-    return {
-        "page": frame,
-        "networks": tuple(network_downloads(item, frame, node_files.get(item.id))
-                          for item in networks),
-        "site_files": (
+    return DownloadsPage(
+        page=frame,
+        networks=tuple(network_downloads(item, frame, node_files.get(item.id))
+                       for item in networks),
+        site_files=(
             DownloadFile(DATAPACKAGE, frame.href(DATAPACKAGE),
                          "Frictionless Data Package descriptor (an open standard): every CSV file "
                          "above with its columns and their types, so other tools can check and "
@@ -129,4 +137,4 @@ def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
                          "Every file of this site with its size in bytes and SHA-256 checksum, to "
                          "confirm a copy is complete and unchanged."),
         ),
-    }
+    )

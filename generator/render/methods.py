@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Iterable
+from typing import Iterable
 from urllib.parse import quote
 
 from ..config import EdgeListSource
@@ -16,7 +16,8 @@ from .network_page import omitted_measures, sampling_sentence
 from .site_map import CHECKS, PageFrame, network_page
 
 __all__ = [
-    "Citation", "MeasureMethod", "NetworkMethods", "ReferenceEntry", "StatisticMethod",
+    "Citation", "MeasureMethod", "MethodsPage", "NetworkMethods", "ReferenceEntry",
+    "StatisticMethod",
     "methods_context", "network_methods", "reference_entries",
 ]
 
@@ -239,15 +240,24 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
     )
 
 
+@dataclass(frozen=True)
+class MethodsPage:
+    """Everything ``methods.html`` shows."""
+
+    page: PageFrame
+    networks: tuple[NetworkMethods, ...]
+    references: tuple[ReferenceEntry, ...]
+
+
 def methods_context(frame: PageFrame, networks: list[NetworkPageInput],
                     relative_paths: dict[str, dict[str, str]], *, link_dois: bool = True
-                    ) -> dict[str, Any]:
+                    ) -> MethodsPage:
     """``relative_paths`` maps a network id to its input files as the user wrote them."""
     references = [ref for item in networks for ref in references_of(item.analysis)]
     cite = _Citations(references)
-    return {
-        "page": frame,
-        "networks": tuple(network_methods(item, frame, cite, relative_paths.get(item.id, {}))
-                          for item in networks),
-        "references": reference_entries(references, link_dois=link_dois),
-    }
+    return MethodsPage(
+        page=frame,
+        networks=tuple(network_methods(item, frame, cite, relative_paths.get(item.id, {}))
+                       for item in networks),
+        references=reference_entries(references, link_dois=link_dois),
+    )

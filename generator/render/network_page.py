@@ -15,12 +15,13 @@ from ..vocabulary import (COMMUNITY, MEASURE_NAMES, PATH_MEASURES, Reading, coun
                           statistic_title, undefined_reason)
 from .describe import (a_network, measure_title, method_title, network_kind, stability_reading,
                        weights_sentence)
-from .figures import figure_views
+from .figures import FigureView, figure_views
 from .inputs import NetworkPageInput
 from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
 
 __all__ = [
-    "TOP_COUNT", "CommunityRow", "CommunityView", "NetworkFacts", "RankedNode", "StatisticRow",
+    "TOP_COUNT", "CommunityRow", "CommunityView", "NetworkFacts", "NetworkLinks", "NetworkPage",
+    "RankedNode", "StatisticRow",
     "TopTable", "community_view", "network_context", "network_facts", "omitted_measures",
     "sampling_sentence", "statistic_rows", "top_tables",
 ]
@@ -237,29 +238,57 @@ def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
             f"comparing nodes within this network.{derived}")
 
 
-def network_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
+@dataclass(frozen=True)
+class NetworkLinks:
+    nodes: str
+    methods: str
+    checks: str
+    downloads: str
+    nodes_csv: str
+
+
+@dataclass(frozen=True)
+class NetworkPage:
+    """Everything ``network.html`` shows."""
+
+    page: PageFrame
+    facts: NetworkFacts
+    statistics: tuple[StatisticRow, ...]
+    map_figures: tuple[FigureView, ...]
+    position_figures: tuple[FigureView, ...]
+    community_figures: tuple[FigureView, ...]
+    other_figures: tuple[FigureView, ...]
+    top_tables: tuple[TopTable, ...]
+    top_count: int
+    communities: CommunityView
+    omitted: tuple[tuple[str, str], ...]
+    sampling: str | None
+    links: NetworkLinks
+
+
+def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
     analysis = item.analysis
     figures = figure_views(frame, item.id, item.figures)
     anchor = f"network-{item.id}"
-    return {
-        "page": frame,
-        "facts": network_facts(item),
-        "statistics": statistic_rows(analysis),
-        "map_figures": tuple(f for f in figures if f.name == "map"),
-        "position_figures": tuple(f for f in figures if f.name in _POSITION_FIGURES),
-        "community_figures": tuple(f for f in figures if f.name == "communities"),
-        "other_figures": tuple(f for f in figures if f.name != "map" and f.name != "communities"
-                               and f.name not in _POSITION_FIGURES),
-        "top_tables": top_tables(analysis),
-        "top_count": TOP_COUNT,
-        "communities": community_view(analysis.communities),
-        "omitted": omitted_measures(analysis),
-        "sampling": sampling_sentence(analysis),
-        "links": {
-            "nodes": frame.href(nodes_page(item.id)),
-            "methods": frame.href(f"{METHODS}#{anchor}"),
-            "checks": frame.href(f"{CHECKS}#{anchor}"),
-            "downloads": frame.href(f"{DOWNLOADS}#{anchor}"),
-            "nodes_csv": frame.href(network_file(item.id, "nodes.csv")),
-        },
-    }
+    return NetworkPage(
+        page=frame,
+        facts=network_facts(item),
+        statistics=statistic_rows(analysis),
+        map_figures=tuple(f for f in figures if f.name == "map"),
+        position_figures=tuple(f for f in figures if f.name in _POSITION_FIGURES),
+        community_figures=tuple(f for f in figures if f.name == "communities"),
+        other_figures=tuple(f for f in figures if f.name not in ("map", "communities")
+                            and f.name not in _POSITION_FIGURES),
+        top_tables=top_tables(analysis),
+        top_count=TOP_COUNT,
+        communities=community_view(analysis.communities),
+        omitted=omitted_measures(analysis),
+        sampling=sampling_sentence(analysis),
+        links=NetworkLinks(
+            nodes=frame.href(nodes_page(item.id)),
+            methods=frame.href(f"{METHODS}#{anchor}"),
+            checks=frame.href(f"{CHECKS}#{anchor}"),
+            downloads=frame.href(f"{DOWNLOADS}#{anchor}"),
+            nodes_csv=frame.href(network_file(item.id, "nodes.csv")),
+        ),
+    )

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
 
 import pandas as pd
 
@@ -13,7 +12,8 @@ from .inputs import NetworkPageInput
 from .network_page import sampling_sentence
 from .site_map import DOWNLOADS, PageFrame, network_file, network_page
 
-__all__ = ["Cell", "Column", "NodeRow", "node_columns", "node_rows", "nodes_context"]
+__all__ = ["Cell", "Column", "NodeRow", "NodesLinks", "NodesPage", "node_columns", "node_rows",
+           "nodes_context"]
 
 
 @dataclass(frozen=True)
@@ -69,17 +69,37 @@ def node_rows(item: NetworkPageInput) -> tuple[NodeRow, ...]:
     return tuple(rows)
 
 
-def nodes_context(item: NetworkPageInput, frame: PageFrame) -> dict[str, Any]:
-    return {
-        "page": frame,
-        "network_title": item.title,
-        "digits": DIGITS,
-        "columns": node_columns(item),
-        "rows": node_rows(item),
-        "sampling": sampling_sentence(item.analysis),
-        "links": {
-            "network": frame.href(network_page(item.id)),
-            "nodes_csv": frame.href(network_file(item.id, "nodes.csv")),
-            "columns": frame.href(f"{DOWNLOADS}#network-{item.id}"),
-        },
-    }
+@dataclass(frozen=True)
+class NodesLinks:
+    network: str
+    nodes_csv: str
+    columns: str
+
+
+@dataclass(frozen=True)
+class NodesPage:
+    """Everything ``nodes.html`` shows."""
+
+    page: PageFrame
+    network_title: str
+    digits: int
+    columns: tuple[Column, ...]
+    rows: tuple[NodeRow, ...]
+    sampling: str | None
+    links: NodesLinks
+
+
+def nodes_context(item: NetworkPageInput, frame: PageFrame) -> NodesPage:
+    return NodesPage(
+        page=frame,
+        network_title=item.title,
+        digits=DIGITS,
+        columns=node_columns(item),
+        rows=node_rows(item),
+        sampling=sampling_sentence(item.analysis),
+        links=NodesLinks(
+            network=frame.href(network_page(item.id)),
+            nodes_csv=frame.href(network_file(item.id, "nodes.csv")),
+            columns=frame.href(f"{DOWNLOADS}#network-{item.id}"),
+        ),
+    )

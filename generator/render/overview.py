@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
 
 from markupsafe import Markup
 
@@ -12,7 +11,7 @@ from ..vocabulary import count, number
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page, nodes_page
 
-__all__ = ["CAUTIONS", "GlanceRow", "glance_rows", "overview_context"]
+__all__ = ["CAUTIONS", "GlanceRow", "OverviewPage", "glance_rows", "overview_context"]
 
 CAUTIONS: tuple[str, ...] = (
     "Network data about people is personal data: names, attributes and ties identify people, and "
@@ -59,12 +58,18 @@ def glance_rows(frame: PageFrame, networks: list[NetworkPageInput]) -> tuple[Gla
     return tuple(rows)
 
 
+@dataclass(frozen=True)
+class OverviewPage:
+    """Everything ``index.html`` shows."""
+
+    page: PageFrame
+    summary: Markup | None
+    networks: tuple[GlanceRow, ...]
+    cautions: tuple[str, ...]
+    built: str
+
+
 def overview_context(frame: PageFrame, networks: list[NetworkPageInput], *,
-                     summary: Markup | None, built: str) -> dict[str, Any]:
-    return {
-        "page": frame,
-        "summary": summary,
-        "networks": glance_rows(frame, networks),
-        "cautions": CAUTIONS,
-        "built": built,
-    }
+                     summary: Markup | None, built: str) -> OverviewPage:
+    return OverviewPage(page=frame, summary=summary, networks=glance_rows(frame, networks),
+                        cautions=CAUTIONS, built=built)

@@ -7,6 +7,7 @@ theme's files of the same name.
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 from dataclasses import dataclass
 from importlib import resources
@@ -75,8 +76,11 @@ class Theme:
                 raise ConfigError(f"template {exc.name or template}, line {exc.lineno}: "
                                   f"{exc.message}", key=_THEME_KEY) from None
 
-    def render(self, template: str, context: dict[str, Any]) -> str:
-        """Render ``template``; a broken template becomes a ConfigError naming file and line."""
+    def render(self, template: str, context: Any) -> str:
+        """Render ``template`` with a page context (a dataclass whose fields the template reads,
+        or a mapping); a broken template becomes a ConfigError naming file and line."""
+        if dataclasses.is_dataclass(context) and not isinstance(context, type):
+            context = {f.name: getattr(context, f.name) for f in dataclasses.fields(context)}
         try:
             return self.environment.get_template(template).render(context)
         except jinja2.TemplateSyntaxError as exc:
