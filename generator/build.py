@@ -19,6 +19,8 @@ from .draw import draw_network
 from .errors import ConfigError, DataError, Finding
 from .ingest import CleanNetwork, read_network
 from .publish import check_output_folder, datapackage_json, network_files, write_site
+from .publish.lock import LockOwner, hold_study_lock
+from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
 from .render.theme import load_theme
 
@@ -126,6 +128,23 @@ def build_study(project: Path | str, *, output: Path | None = None,
     study = load_study(project)
     if output is not None:
         study = _with_output(study, output)
+    # One build of a study at a time: two at once raced over the swap of the site folder.
+    with hold_study_lock(study.root, on_wait=_report_waiting(progress)):
+        # A build killed between its two renames left the last site aside; put it back first,
+        # so it is in place even if this build then stops on bad data.
+        recover_interrupted_site(study.output)
+        return _build_holding_lock(study, progress)
+
+
+def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
+    def waiting(owner: LockOwner) -> None:
+        progress.stage("lock", f"waiting for the build of process {owner.pid} on {owner.host} "
+                       f"(since {owner.since_text()}) to finish")
+    return waiting
+
+
+def _build_holding_lock(study: StudyConfig, progress: Progress) -> BuildResult:
+    """Every stage after config load; the caller holds the study's lock."""
     progress.stage("config", f"read {study.study_file.name}: {_n(len(study.networks), 'network')}")
     cleaned = _read_all(study, progress)
     notes, summary = _read_notes(study)

@@ -5,7 +5,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-__all__ = ["ConfigError", "DataError", "Finding", "NetfolioError", "OutputError", "UsageError"]
+__all__ = ["ConfigError", "DataError", "Finding", "LockError", "NetfolioError", "OutputError",
+           "UsageError"]
 
 
 class NetfolioError(Exception):
@@ -80,3 +81,18 @@ class OutputError(NetfolioError):
     exit_code = 1
 
 
+class LockError(NetfolioError):
+    """Another build holds the study's lock, or the lock file cannot be made.
+
+    ``path`` is the lock file; ``pid``, ``host`` and ``since`` name its holder when it names one.
+    """
+
+    exit_code = 1
+
+    def __init__(self, message: str, *, path: Path, pid: int | None = None,
+                 host: str | None = None, since: str | None = None):
+        super().__init__(message)
+        self.path = path
+        self.pid = pid
+        self.host = host
+        self.since = since

@@ -5,12 +5,22 @@ from __future__ import annotations
 import csv
 import io
 import json
+import os
+import shutil
+import socket
+import subprocess
+import sys
+import time
+from pathlib import Path
 
 import pytest
 
 from conftest import analyse, edge_study, load_network
-from generator.errors import OutputError
+from generator.errors import LockError, OutputError
 from generator.publish import MARKER, datapackage_json, network_files, write_site
+from generator.publish import lock as lock_module
+from generator.publish.lock import LOCK_NAME, hold_study_lock
+from generator.publish.site import recover_interrupted_site
 
 
 @pytest.fixture()
@@ -101,3 +111,197 @@ def test_site_write_refuses_paths_that_escape_the_site(tmp_path) -> None:
     with pytest.raises(OutputError, match="outside the site folder"):
         write_site(tmp_path / "site", {"../evil.html": b"x"}, inputs=[])
     assert not (tmp_path / "evil.html").exists() and not (tmp_path / "site").exists()
+
+
+# ---------------------------------------------------------------------------------------------
+# What killed or overlapping builds leave beside the site
+
+
+def old_site(tmp_path: Path) -> Path:
+    out = tmp_path / "site"
+    write_site(out, {"index.html": b"old site", "files/a.csv": b"a\n1\n"}, inputs=[])
+    return out
+
+
+def tree(folder: Path) -> dict[str, bytes]:
+    return {p.relative_to(folder).as_posix(): p.read_bytes()
+            for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def test_staging_folders_of_killed_builds_are_removed_and_nothing_else(tmp_path) -> None:
+    out = old_site(tmp_path)
+    for name in (".site.building-k2x9_q1a", ".site.building-0a1b2c3d"):
+        (tmp_path / name / "networks").mkdir(parents=True)
+        (tmp_path / name / "networks" / "index.html").write_bytes(b"half written")
+    keep = {".site.building-notes.txt": "file", ".site.buildings": "dir",
+            ".other.building-k2x9_q1a": "dir", "site.building-k2x9_q1a": "dir",
+            ".site.building-my notes": "dir", ".site.building-": "dir"}
+    for name, kind in keep.items():
+        if kind == "file":
+            (tmp_path / name).write_text("keep")
+        else:
+            (tmp_path / name).mkdir()
+            (tmp_path / name / "keep.txt").write_text("keep")
+    target = tmp_path / "elsewhere"
+    target.mkdir()
+    (target / "keep.txt").write_text("keep")
+    (tmp_path / ".site.building-linked01").symlink_to(target, target_is_directory=True)
+    write_site(out, {"index.html": b"new"}, inputs=[])
+    left = sorted(p.name for p in tmp_path.iterdir())
+    assert left == sorted([*keep, "elsewhere", "site", ".site.building-linked01"])
+    assert (target / "keep.txt").read_text() == "keep"
+    assert (out / "index.html").read_bytes() == b"new"
+
+
+def test_a_missing_site_is_restored_from_the_previous_copy_a_killed_swap_left(tmp_path) -> None:
+    out = old_site(tmp_path)
+    before = tree(out)
+    out.rename(tmp_path / ".site.previous")  # killed between the two renames
+    recover_interrupted_site(out)
+    assert tree(out) == before and not (tmp_path / ".site.previous").exists()
+
+
+def test_a_previous_copy_beside_a_whole_site_is_removed(tmp_path) -> None:
+    out = old_site(tmp_path)
+    before = tree(out)
+    shutil.copytree(out, tmp_path / ".site.previous")
+    recover_interrupted_site(out)
+    assert tree(out) == before and not (tmp_path / ".site.previous").exists()
+
+
+def test_a_previous_folder_netfolio_did_not_make_is_never_moved_or_removed(tmp_path) -> None:
+    mine = tmp_path / ".site.previous"
+    mine.mkdir()
+    (mine / "draft.txt").write_text("mine")
+    recover_interrupted_site(tmp_path / "site")
+    assert not (tmp_path / "site").exists() and (mine / "draft.txt").read_text() == "mine"
+    write_site(tmp_path / "site", {"index.html": b"x"}, inputs=[])
+    with pytest.raises(OutputError, match=r"\.site\.previous .*not made by netfolio"):
+        write_site(tmp_path / "site", {"index.html": b"y"}, inputs=[])
+    assert (mine / "draft.txt").read_text() == "mine"
+    assert (tmp_path / "site" / "index.html").read_bytes() == b"x"
+    assert not list(tmp_path.glob(".site.building-*"))
+
+
+def test_a_previous_copy_that_another_build_removes_first_is_not_an_error(tmp_path,
+                                                                          monkeypatch) -> None:
+    out = old_site(tmp_path)
+    shutil.copytree(out, tmp_path / ".site.previous")
+    real_rmtree = shutil.rmtree
+
+    def removed_by_someone_else_first(path, *args, **kwargs):
+        real_rmtree(path, ignore_errors=True)  # the other build wins the race to remove it
+        return real_rmtree(path, *args, **kwargs)
+
+    monkeypatch.setattr(shutil, "rmtree", removed_by_someone_else_first)
+    write_site(out, {"index.html": b"new"}, inputs=[])
+    assert (out / "index.html").read_bytes() == b"new"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]
+
+
+def test_a_failed_rename_of_the_new_site_puts_the_last_site_back(tmp_path, monkeypatch) -> None:
+    out = old_site(tmp_path)
+    before = tree(out)
+    real_rename = Path.rename
+
+    def refuse_to_move_staging_in(self, target):
+        if self.name.startswith(".site.building-"):
+            raise PermissionError(13, "Permission denied", str(self))
+        return real_rename(self, target)
+
+    monkeypatch.setattr(Path, "rename", refuse_to_move_staging_in)
+    with pytest.raises(OutputError, match="could not move the new site into place"):
+        write_site(out, {"index.html": b"new"}, inputs=[])
+    assert tree(out) == before
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]
+
+
+# ---------------------------------------------------------------------------------------------
+# The study lock
+
+
+def test_the_lock_names_its_owner_and_is_removed_when_released(tmp_path) -> None:
+    with hold_study_lock(tmp_path) as owner:
+        held = json.loads((tmp_path / LOCK_NAME).read_text())
+        assert held["pid"] == os.getpid() == owner.pid
+        assert held["host"] == socket.gethostname() == owner.host
+        assert held["since"].endswith("Z")
+    assert not (tmp_path / LOCK_NAME).exists()
+
+
+def test_the_lock_is_released_when_the_work_inside_it_fails(tmp_path) -> None:
+    with pytest.raises(RuntimeError), hold_study_lock(tmp_path):
+        raise RuntimeError("stage failed")
+    assert not (tmp_path / LOCK_NAME).exists()
+
+
+def test_a_second_holder_waits_then_gets_an_exit_1_error_naming_the_first(tmp_path,
+                                                                         monkeypatch) -> None:
+    monkeypatch.setattr(lock_module, "WAIT_SECONDS", 0.3)
+    waited_for = []
+    with hold_study_lock(tmp_path) as first:
+        with pytest.raises(LockError) as caught:
+            with hold_study_lock(tmp_path, on_wait=waited_for.append):
+                pass
+    assert caught.value.exit_code == 1 and caught.value.pid == first.pid
+    assert waited_for == [first]
+    message = caught.value.format_message()
+    assert f"process {first.pid}" in message and first.host in message and "waited 0.3 s" in message
+
+
+def test_a_lock_released_while_waiting_is_taken(tmp_path, monkeypatch) -> None:
+    monkeypatch.setattr(lock_module, "WAIT_SECONDS", 5.0)
+    path = tmp_path / LOCK_NAME
+    path.write_text(json.dumps({"pid": os.getpid(), "host": socket.gethostname(),
+                                "since": "2024-03-01T09:30:00Z"}))
+    released = []
+
+    def release_soon(owner) -> None:
+        os.unlink(path)  # the first build finishes while the second waits
+        released.append(owner.pid)
+
+    with hold_study_lock(tmp_path, on_wait=release_soon) as owner:
+        assert json.loads(path.read_text())["pid"] == owner.pid
+    assert released == [os.getpid()] and not path.exists()
+
+
+def test_a_lock_replaced_by_someone_else_is_not_removed_on_release(tmp_path) -> None:
+    path = tmp_path / LOCK_NAME
+    with hold_study_lock(tmp_path):
+        path.unlink()  # removed by hand, and another build took the study
+        path.write_text(json.dumps({"pid": 1, "host": "records-server-2", "since": ""}))
+    assert json.loads(path.read_text())["host"] == "records-server-2"
+
+
+def test_a_stale_lock_from_a_dead_process_on_this_host_is_taken_over(tmp_path) -> None:
+    child = subprocess.Popen([sys.executable, "-c", "pass"])
+    child.wait()  # reaped: its id now names no process
+    path = tmp_path / LOCK_NAME
+    path.write_text(json.dumps({"pid": child.pid, "host": socket.gethostname(),
+                                "since": "2024-03-01T09:30:00Z"}))
+    with hold_study_lock(tmp_path) as owner:
+        assert json.loads(path.read_text())["pid"] == owner.pid == os.getpid()
+    assert sorted(p.name for p in tmp_path.iterdir()) == []
+
+
+def test_a_lock_with_no_readable_owner_is_taken_over_only_once_it_is_old(tmp_path,
+                                                                      monkeypatch) -> None:
+    monkeypatch.setattr(lock_module, "WAIT_SECONDS", 0.2)
+    path = tmp_path / LOCK_NAME
+    path.write_bytes(b"")  # the owner was stopped right after creating it
+    with pytest.raises(LockError, match="names no owner"):
+        with hold_study_lock(tmp_path):
+            pass
+    old = time.time() - lock_module.UNREADABLE_GRACE_SECONDS - 5
+    os.utime(path, (old, old))
+    with hold_study_lock(tmp_path) as owner:
+        assert json.loads(path.read_text())["pid"] == owner.pid
+
+
+def test_a_lock_path_that_is_not_a_plain_file_is_refused_untouched(tmp_path) -> None:
+    (tmp_path / LOCK_NAME).mkdir()
+    (tmp_path / LOCK_NAME / "keep.txt").write_text("keep")
+    with pytest.raises(LockError, match="not a lock file"):
+        with hold_study_lock(tmp_path):
+            pass
+    assert (tmp_path / LOCK_NAME / "keep.txt").read_text() == "keep"
