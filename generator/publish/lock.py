@@ -110,6 +110,8 @@ def hold_study_lock(folder: Path, *,
 
 
 def _acquire(path: Path, written: bytes, on_wait: Callable[[LockOwner], None] | None) -> None:
+    """Create the lock holding ``written``, taking over a stale one and polling a live one until
+    ``WAIT_SECONDS`` have passed."""
     wait = WAIT_SECONDS  # read at call time, so tests can shorten it
     deadline = time.monotonic() + wait
     told = False
@@ -161,6 +163,7 @@ def _read(path: Path) -> bytes | None:
 
 
 def _is_stale(owner: LockOwner | None, path: Path) -> bool:
+    """True only when the lock provably belongs to nobody (see the module notes)."""
     if owner is None:
         try:
             age = time.time() - os.lstat(path).st_mtime
@@ -218,6 +221,7 @@ def _release(path: Path, written: bytes) -> None:
 
 
 def _held_error(path: Path, owner: LockOwner | None, wait: float) -> LockError:
+    """The error for a lock still held after the wait: who holds it, and what the user can do."""
     waited = f"waited {wait:g} s"
     if owner is None:
         return LockError(f"the lock file {path} names no owner (a build stopped as it began?); "
