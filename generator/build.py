@@ -22,6 +22,7 @@ from .publish import check_output_folder, datapackage_json, network_files, write
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
+from .render.site import render_notes
 from .render.theme import load_theme
 
 __all__ = ["BuildResult", "Progress", "build_study", "check_study"]
@@ -74,13 +75,26 @@ def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
 
 
 def _read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
+    """Every notes/*.md and the summary; the errors of all of them before giving up."""
     notes: dict[str, str] = {}
+    errors: list[Finding] = []
     folder = study.root / "notes"
     if folder.is_dir():
         for path in sorted(folder.glob("*.md")):
-            if not path.resolve().is_relative_to(study.root):
+            try:
+                inside = path.resolve().is_relative_to(study.root)
+            except (OSError, RuntimeError):  # a link that leads back to itself
+                errors.append(Finding("error", study.relative(path), "is a link that never "
+                                      "reaches a file (it leads back to itself)"))
+                continue
+            if not inside:
                 raise ConfigError(f"note {path.name} links outside the study folder", key="notes")
-            notes[path.stem] = _read_text(path, study)
+            try:
+                notes[path.stem] = _read_text(path, study)
+            except DataError as exc:
+                errors += exc.findings
+    if errors:
+        raise DataError(errors)
     summary = _read_text(study.summary, study) if study.summary else None
     return notes, summary
 
@@ -92,6 +106,17 @@ def _read_text(path: Path, study: StudyConfig) -> str:
         line = path.read_bytes()[: exc.start].count(b"\n") + 1
         raise DataError(Finding("error", study.relative(path), "is not UTF-8 text; save it as "
                                 "UTF-8", line=line)) from None
+    except IsADirectoryError:
+        raise DataError(Finding("error", study.relative(path), "is a folder, not a markdown file; "
+                                "rename it or move it out of notes/")) from None
+    except FileNotFoundError:  # listed, yet gone: a link whose target does not exist
+        target = os.readlink(path) if path.is_symlink() else None
+        raise DataError(Finding("error", study.relative(path), "is a link to a file that does "
+                                "not exist; remove the link or restore its target",
+                                value=target)) from None
+    except OSError as exc:
+        raise DataError(Finding("error", study.relative(path),
+                                f"cannot be read: {exc.strerror or exc}")) from None
 
 
 def _build_info() -> dict[str, str]:
@@ -110,7 +135,9 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
     for clean in cleaned:
         for finding in clean.checks.findings:
             report(finding)
-    notes, _ = _read_notes(study)
+    notes, summary = _read_notes(study)
+    for finding in render_notes(study, notes, summary).findings:  # a note too deep fails here
+        report(finding)
     load_theme(study).check_templates()  # an unknown or broken theme fails here as in build
     check_output_folder(study.output, _input_files(study, cleaned, notes))
     return study

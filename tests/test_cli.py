@@ -180,3 +180,56 @@ def test_check_finds_a_template_syntax_error_in_a_user_theme(tmp_path: Path, cap
     assert main(["check", str(study)]) == 1
     err = capsys.readouterr().err
     assert "[site.theme] template index.html, line 1" in err and "Traceback" not in err
+
+
+def _deep_list(levels: int) -> str:
+    return "\n".join("    " * level + "- item" for level in range(levels)) + "\n"
+
+
+BAD_NOTES = [
+    # (what to put at notes/<name>, expected pieces of the message)
+    ("broken.md", "link", ["notes/broken.md", "link to a file that does not exist", "'gone.md'"]),
+    ("folder.md", "folder", ["notes/folder.md", "is a folder, not a markdown file"]),
+    ("deep.md", _deep_list(250), ["notes/deep.md", "nested too deeply"]),
+]
+
+
+@pytest.mark.parametrize("verb", ["build", "check"])
+@pytest.mark.parametrize(("name", "content", "pieces"), BAD_NOTES, ids=["broken-link", "folder", "deep"])
+def test_a_bad_note_exits_1_naming_it_and_leaves_the_site_untouched(
+        built: Path, verb: str, name: str, content: str, pieces: list[str], capsys) -> None:
+    (built / "notes").mkdir()
+    (built / "notes" / "fine.md").write_text("# Fine\n\nA note.\n", encoding="utf-8")
+    assert main(["build", str(built), "--quiet"]) == 0
+    before = snapshot(built / "output")
+    capsys.readouterr()
+    path = built / "notes" / name
+    if content == "link":
+        path.symlink_to("gone.md")
+    elif content == "folder":
+        path.mkdir()
+    else:
+        path.write_text(content, encoding="utf-8")
+    assert main([verb, str(built)]) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" not in err
+    for piece in pieces:
+        assert piece in err
+    assert snapshot(built / "output") == before
+
+
+def test_a_list_nested_as_deep_as_markdown_can_render_still_builds(built: Path) -> None:
+    (built / "notes").mkdir()
+    (built / "notes" / "nested.md").write_text(_deep_list(40), encoding="utf-8")
+    assert main(["check", str(built), "--quiet"]) == 0
+    assert main(["build", str(built), "--quiet"]) == 0
+
+
+def test_check_prints_an_external_image_in_a_note_with_its_line(built: Path, capsys) -> None:
+    (built / "notes").mkdir()
+    (built / "notes" / "pics.md").write_text("# Pictures\n\n![map](https://maps.example.org/m.png)\n",
+                                             encoding="utf-8")
+    assert main(["check", str(built)]) == 0
+    out = capsys.readouterr().out
+    assert "notes/pics.md, line 3: external image not loaded" in out
+    assert "'https://maps.example.org/m.png'" in out

@@ -6,21 +6,21 @@ import re
 from dataclasses import replace
 from html.parser import HTMLParser
 from pathlib import Path
-from urllib.parse import unquote, urlsplit
+from urllib.parse import unquote, urljoin, urlsplit
 
 import pytest
 
 import generator.render as render
 from generator.analyse import Statistic, analyse_network
 from generator.analyse.communities import CommunityResult
-from generator.config import (CommunitiesConfig, MeasuresConfig, NetworkConfig, SiteConfig,
-                              StudyConfig)
+from generator.config import (CommunitiesConfig, EdgeListSource, MatrixSource, MeasuresConfig,
+                              NetworkConfig, SiteConfig, StudyConfig)
 from generator.draw.figure import Figure
-from generator.errors import ConfigError
+from generator.errors import ConfigError, DataError
 from generator.ingest import read_network
 from generator.render import CAUTIONS, NetworkPageInput, render_site
-from generator.render.describe import stability_reading
-from generator.render.display import shown, significant
+from generator.render.describe import references_of, stability_reading
+from generator.vocabulary import number, value_text
 from generator.render.network_page import statistic_rows, top_tables
 from generator.render.notes import render_markdown
 from generator.render.theme import packaged_themes
@@ -90,10 +90,10 @@ def _study(root: Path, *, theme: str = "default", allow_html: bool = False,
         output=root / "out",
         seed=3,
         networks=(
-            NetworkConfig(id="advice", title="Advice <ties>", edges=data / "advice.csv",
-                          nodes=data / "people.csv", label="name", directed=True, weight="weight",
-                          color_by="team"),
-            NetworkConfig(id="work", title="Works with", edges=data / "work.csv",
+            NetworkConfig(id="advice", title="Advice <ties>",
+                          data=EdgeListSource(path=data / "advice.csv", weight="weight"),
+                          nodes=data / "people.csv", label="name", directed=True, color_by="team"),
+            NetworkConfig(id="work", title="Works with", data=EdgeListSource(path=data / "work.csv"),
                           nodes=data / "people.csv", label="name"),
         ),
         communities=CommunitiesConfig(runs=5),
@@ -234,6 +234,23 @@ def test_no_external_address_except_doi_links(built):
     assert "doi:10.2307/3033543" in plain["methods.html"].decode()
 
 
+CSP = ("default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self'; "
+       "base-uri 'none'; form-action 'none'")
+
+
+def test_every_page_carries_the_content_security_policy_and_needs_no_inline_code(built):
+    _, _, site = built
+    for path, html in _pages(site).items():
+        page = _Page(html)
+        metas = [m for m in page.all("meta") if m.get("http-equiv") == "Content-Security-Policy"]
+        assert [m["content"] for m in metas] == [CSP], path
+        first = [tag for tag, _ in page.tags if tag in ("meta", "link", "script", "style")][:2]
+        assert first == ["meta", "meta"], path  # right after the charset, before any resource
+        assert all(s.get("src") for s in page.all("script")), path  # no inline script
+        assert not page.all("style"), path
+        assert not [a for _, a in page.tags if "style" in a or any(k.startswith("on") for k in a)], path
+
+
 def test_rendering_twice_gives_identical_bytes(built):
     study, items, site = built
     assert _render(study, items) == site
@@ -335,6 +352,165 @@ def test_a_note_without_a_heading_gets_one_from_its_name(tmp_path):
     assert "Field work" in "".join(page.text)
 
 
+# Notes carry no script and load nothing from outside, however the address is spelled.
+
+# Markdown whose link or image a browser would read as script: character references, control
+# characters, case, reference-style definitions and autolinks.
+SCRIPT_PAYLOADS = [
+    "[x](&#106;avascript:alert(1))",
+    "[x](javascript&#58;alert(1))",
+    "[x](java&#x09;script:alert(1))",
+    "[x](java&#10;script:alert(1))",
+    "[x](java&Tab;script:alert(1))",
+    "[x](&#x6A;&#x61;&#x76;&#x61;script&colon;alert(1))",
+    "[x](JaVaScRiPt:alert(1))",
+    "[x]( &#32;javascript:alert(1))",
+    "[x](vbscript:msgbox(1))",
+    "[x](VBScript&#58;msgbox(1))",
+    "[x](data:text/html;base64,PHNjcmlwdD5hbGVydCgxKTwvc2NyaXB0Pg==)",
+    "[x](DaTa&#58;text/html,hi)",
+    "[x][r]\n\n[r]: &#106;avascript:alert(1)",
+    "[x][r]\n\n[r]: java&#10;script:alert(1) \"title\"",
+    "![x](&#106;avascript:alert(1))",
+    "![x](java&#x09;script:alert(1))",
+    "![x](data:image/svg+xml;base64,PHN2Zy8+)",
+    "![x][r]\n\n[r]: javascript&#58;alert(1)",
+    "<javascript:alert(1)>",
+    "<JAVASCRIPT&#58;alert(1)>",
+    "<vbscript:msgbox(1)>",
+    "<data:text/html,hi>",
+]
+EXTERNAL_IMAGES = [  # (markdown, the address as a browser reads it, the line it is written on)
+    ("![chart](https://pics.example.org/c.png)", "https://pics.example.org/c.png", 5),
+    ("![chart](HTTP://pics.example.org/c.png)", "HTTP://pics.example.org/c.png", 5),
+    ("![chart](//pics.example.org/c.png)", "//pics.example.org/c.png", 5),
+    ("![chart](&#104;ttps://pics.example.org/c.png)", "https://pics.example.org/c.png", 5),
+    ("![chart](ht&#9;tps://pics.example.org/c.png)", "ht\ttps://pics.example.org/c.png", 5),
+    ("![chart](ftp://pics.example.org/c.png)", "ftp://pics.example.org/c.png", 5),
+    # a reference-style image: its address is written on the definition's line
+    ("![chart][r]\n\n[r]: https://pics.example.org/r.png", "https://pics.example.org/r.png", 7),
+]
+_PAGE = "file:///study/output/notes/note.html"
+
+
+def _resolved(address: str) -> tuple[str, str]:
+    """(scheme, host) of an attribute value as a browser reads it; urlsplit, like a browser,
+    drops tabs and newlines and trims leading controls and spaces; a backslash counts as a
+    slash in a file: or http: address."""
+    parts = urlsplit(urljoin(_PAGE, address.replace("\\", "/")))
+    return parts.scheme.lower(), parts.netloc
+
+
+def _unsafe_addresses(html: str) -> list[str]:
+    """Every href that could run code and every src that is not a file of the site."""
+    unsafe = []
+    for tag, attrs in _Page(html).tags:
+        for name in ("href", "src"):
+            value = attrs.get(name)
+            if value is None:
+                continue
+            scheme, host = _resolved(value)
+            allowed = {"file", "http", "https", "mailto"} if name == "href" else {"file"}
+            if scheme not in allowed or (name == "src" and host):
+                unsafe.append(f"<{tag} {name}={value!r}>")
+    return unsafe
+
+
+@pytest.mark.parametrize("allow_html", [False, True], ids=["escaped", "allow_html"])
+@pytest.mark.parametrize("payload", SCRIPT_PAYLOADS)
+def test_no_link_or_image_in_a_note_resolves_to_script(payload, allow_html):
+    note = render_markdown(f"Before.\n\n{payload}\n\nAfter.", allow_html=allow_html)
+    assert _unsafe_addresses(note.html) == []
+    assert "Before." in note.html and "After." in note.html
+
+
+def test_the_sanitiser_keeps_ordinary_links_and_images():
+    note = render_markdown("[a](https://example.org/x?y=1&z=2) [b](http://example.org) "
+                           "[c](mailto:ana@example.org) <https://example.org/auto> [d](#part) "
+                           "[e](../methods.html) ![f](img/chart.png \"Chart\")")
+    links = {a["href"] for a in _Page(note.html).all("a")}
+    assert links == {"https://example.org/x?y=1&z=2", "http://example.org", "mailto:ana@example.org",
+                     "https://example.org/auto", "#part", "../methods.html"}
+    assert _Page(note.html).all("img") == [{"alt": "f", "src": "img/chart.png", "title": "Chart"}]
+    assert note.findings == ()
+
+
+def test_only_the_tags_and_attributes_markdown_makes_survive():
+    text = ("# T\n\n| a | b |\n|:--|--:|\n| 1 | 2 |\n\n```python\nx = '<b>'\n```\n\n"
+            "```{.python #block .extra}\ny\n```\n\n> quote\n\n- *e* **s** `c`\n\n---\n")
+    note = render_markdown(text)
+    page = _Page(note.html)
+    assert {tag for tag, _ in page.tags} == {"h1", "table", "thead", "tbody", "tr", "th", "td",
+                                               "pre", "code", "blockquote", "p", "ul", "li", "em",
+                                               "strong", "hr"}
+    assert page.all("th") == [{"align": "left", "scope": "col"}, {"align": "right", "scope": "col"}]
+    assert page.all("code")[:2] == [{"class": "language-python"}, {"class": "language-python"}]
+    assert page.all("pre") == [{}, {}]  # no id or stray class from the attribute form
+    assert "style=" not in note.html  # aligned columns need no inline style (the CSP has none)
+    assert "x = &#x27;&lt;b&gt;&#x27;" in note.html or "x = '&lt;b&gt;'" in note.html
+
+
+@pytest.mark.parametrize(("markdown_text", "address", "line"), EXTERNAL_IMAGES)
+def test_an_external_image_shows_its_alt_text_and_is_reported_with_its_line(markdown_text, address,
+                                                                            line):
+    note = render_markdown(f"# Title\n\nSee:\n\n{markdown_text}\n", file="notes/pics.md")
+    page = _Page(note.html)
+    assert page.all("img") == [] and _unsafe_addresses(note.html) == []
+    assert '<span class="image-alt">chart</span>' in note.html
+    assert len(note.findings) == 1
+    finding = note.findings[0]
+    assert (finding.file, finding.line, finding.value) == ("notes/pics.md", line, address)
+    assert finding.level == "fix" and "external image not loaded" in finding.message
+    assert "copy the image into the study folder" in finding.message
+
+
+def test_each_external_image_is_reported_on_its_own_line():
+    text = "![a](https://h.example/1.png)\n\ntext\n\n![b](https://h.example/1.png) ![](//h.example/2.png)\n"
+    note = render_markdown(text, file="notes/pics.md")
+    assert [(f.line, f.value) for f in note.findings] == [
+        (1, "https://h.example/1.png"), (5, "https://h.example/1.png"), (5, "//h.example/2.png")]
+    assert '<span class="image-alt">(image not loaded)</span>' in note.html
+
+
+def test_raw_html_images_are_reported_when_allow_html_keeps_them():
+    note = render_markdown('Raw <img src="https://h.example/r.png" alt="r"> and ![m](//h.example/m.png)',
+                           allow_html=True, file="notes/raw.md")
+    assert sorted(f.value for f in note.findings) == ["//h.example/m.png", "https://h.example/r.png"]
+    assert '<img src="https://h.example/r.png" alt="r">' in note.html  # the author's HTML, as written
+
+
+def test_a_note_nested_too_deeply_is_a_data_error_naming_it():
+    deep = "\n".join("    " * level + "- item" for level in range(250))
+    with pytest.raises(DataError) as raised:
+        render_markdown(deep, file="notes/deep.md")
+    assert raised.value.findings[0].file == "notes/deep.md"
+    assert "nested too deeply" in raised.value.findings[0].message
+
+
+def test_checks_page_lists_the_findings_of_notes_and_summary_once(tmp_path):
+    study = replace(_study(tmp_path), summary=tmp_path / "notes" / "index.md")
+    summary = "Intro.\n\n![logo](https://pics.example.org/logo.png)\n"
+    site = _render(study, _inputs(study), summary=summary,
+                   notes={"index": summary, "field": "# Field\n\nx\n\n![map](//maps.example.org/m.png)"})
+    html = site["checks.html"].decode()
+    section = html[html.index('<h2 id="notes">Notes and summary</h2>'):]
+    rows = re.findall(r"<tr>\s*<th scope=\"row\">(.*?)</th>\s*<td><code>(.*?)</code></td>\s*"
+                      r"<td class=\"num\">(.*?)</td>\s*<td>.*?</td>\s*<td>(.*?)</td>", section, re.S)
+    assert [(file, line, value) for _, file, line, value in rows] == [
+        ("notes/field.md", "5", "//maps.example.org/m.png"),
+        ("notes/index.md", "3", "https://pics.example.org/logo.png")]
+    assert all("external image not loaded" in message for message, *_ in rows)
+    for path in ("index.html", "notes/index.html", "notes/field.html"):
+        assert "example.org" not in "".join(a.get("src") or "" for a in _Page(site[path].decode()).all("img"))
+
+
+def test_checks_page_says_when_the_notes_needed_nothing(built):
+    _, _, site = built
+    html = site["checks.html"].decode()
+    section = html[html.index('<h2 id="notes">Notes and summary</h2>'):]
+    assert "No fixes were needed." in section
+
+
 # ---------------------------------------------------------------------------------------------
 # Page content
 
@@ -358,9 +534,11 @@ def test_statistics_table_has_one_row_per_statistic(built):
         assert len(_rows(html, "statistics")) == len(item.analysis.statistics)
 
 
-def test_undefined_statistic_shows_not_defined_and_why():
-    rows = statistic_rows((Statistic("nodes", 4), Statistic("assortativity:team", None,
-                                                            "not defined: every node has the same value")))
+def test_undefined_statistic_shows_not_defined_and_why(built):
+    _, items, _ = built
+    analysis = replace(items[0].analysis, statistics=(
+        Statistic("nodes", 4), Statistic("assortativity:team", None, "one_value")))
+    rows = statistic_rows(analysis)
     assert rows[0].value == "4" and rows[0].defined
     assert rows[1].value == "not defined" and not rows[1].defined
     assert rows[1].reading == "Every node has the same value."
@@ -375,7 +553,7 @@ def test_nodes_page_has_one_row_per_node_and_sort_values(built):
         assert "table.js" in html and "data-sortable" in html
     advice = site["networks/advice/nodes.html"].decode()
     pagerank = float(items[0].analysis.measures.loc["a1", "pagerank"])
-    assert f'data-value="{pagerank!r}">{significant(pagerank)}<' in advice
+    assert f'data-value="{pagerank!r}">{number(pagerank)}<' in advice
 
 
 def test_network_page_shows_figures_top_nodes_and_communities(built):
@@ -419,7 +597,7 @@ def test_methods_page_is_written_from_what_ran(built):
     assert "combined by sum" in html and "Self-loops" in html
     assert "Fruchterman-Reingold" in html and "seed 3" in html
     references = re.findall(r'<li id="ref-([a-z0-9]+)">', html)
-    expected = list(dict.fromkeys(r.key for item in items for r in item.analysis.references))
+    expected = list(dict.fromkeys(r.key for item in items for r in references_of(item.analysis)))
     assert references == expected
 
 
@@ -444,11 +622,11 @@ def test_downloads_page_describes_every_file_and_the_columns(built):
 def test_a_tiny_matrix_network_without_node_list_reads_plainly(tmp_path):
     (tmp_path / "m.csv").write_text(",p,q\np,0,1\nq,1,0\n", encoding="utf-8")
     study = StudyConfig(root=tmp_path, title="Tiny", output=tmp_path / "out", networks=(
-        NetworkConfig(id="pair", title="A pair", matrix=tmp_path / "m.csv"),),
+        NetworkConfig(id="pair", title="A pair", data=MatrixSource(path=tmp_path / "m.csv")),),
         communities=CommunitiesConfig(runs=2))
     site = _render(study, _inputs(study), notes={}, summary=None)
     network = site["networks/pair/index.html"].decode()
-    assert "not defined" in network and "Not defined below three nodes." in network
+    assert "not defined" in network and "It needs at least three nodes." in network
     methods = site["methods.html"].decode()
     assert "adjacency matrix m.csv" in methods and "there is no node list" in methods
     assert "Repeated ties" not in methods
@@ -513,19 +691,14 @@ def test_a_broken_user_template_is_a_config_error_naming_the_template(tmp_path):
 # Small pieces
 
 
-@pytest.mark.parametrize(("value", "text"), [
-    (0.0147701, "0.01477"), (0.5, "0.5"), (12.0, "12"), (12345.678, "12,350"), (9.99996, "10"),
-    (-0.0079912, "-0.007991"), (0.0000123456, "1.235e-05"), (1.0, "1"), (0.0, "0"),
-    (float("nan"), "\u2014"), (float("inf"), "\u221e"),
-])
-def test_numbers_show_four_significant_digits(value, text):
-    assert significant(value) == text
+# How numbers read (three significant digits) is tested with the one formatter, in
+# tests/test_vocabulary.py; pages only have to use it.
 
 
 def test_missing_values_show_as_a_dash():
     import pandas as pd
-    assert shown(pd.NA) == shown(None) == shown(float("nan")) == "\u2014"
-    assert shown(7) == "7" and shown("north") == "north"
+    assert value_text(pd.NA) == value_text(None) == value_text(float("nan")) == "\u2014"
+    assert value_text(7) == "7" and value_text("north") == "north"
 
 
 def test_top_tables_rank_ties_together_and_count_ties_past_the_cut(built):

@@ -1,4 +1,5 @@
-"""The data-checks page context: every fix and note found while reading each network."""
+"""The data-checks page context: every fix and note found while reading each network and
+rendering the notes."""
 
 from __future__ import annotations
 
@@ -10,12 +11,20 @@ from .display import MISSING
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page
 
-__all__ = ["LEVEL_TITLES", "FindingGroup", "FindingRow", "NetworkChecks", "checks_context",
-           "finding_groups"]
+__all__ = ["LEVEL_TITLES", "NOTES_RULES", "FindingGroup", "FindingRow", "NetworkChecks",
+           "NotesChecks", "checks_context", "finding_groups"]
 
 # In the order shown. Errors stop a build, so a built site normally shows only fixes and notes.
 LEVEL_TITLES = {"error": "Errors", "fix": "Fixes applied", "note": "Notes"}
 _NONE_FOUND = {"fix": "No fixes were needed.", "note": "Nothing else to note."}
+
+# What rendering does to every note and the front-page summary, said above their findings.
+NOTES_RULES = (
+    "Raw HTML is shown as text unless [site] allow_html = true; links and images pass an "
+    "allow-list, and a link whose address could run code is left without its address.",
+    "Images load only from inside the site: an image from another address is shown as its alt "
+    "text.",
+)
 
 
 @dataclass(frozen=True)
@@ -42,6 +51,14 @@ class NetworkChecks:
     title: str
     anchor: str
     page_href: str
+    rules: tuple[str, ...]
+    groups: tuple[FindingGroup, ...]
+
+
+@dataclass(frozen=True)
+class NotesChecks:
+    title: str
+    anchor: str
     rules: tuple[str, ...]
     groups: tuple[FindingGroup, ...]
 
@@ -76,7 +93,9 @@ def _rules(item: NetworkPageInput) -> tuple[str, ...]:
             "Lines count as in a text editor: the header is line 1.")
 
 
-def checks_context(frame: PageFrame, networks: list[NetworkPageInput]) -> dict[str, Any]:
+def checks_context(frame: PageFrame, networks: list[NetworkPageInput], *,
+                   notes: tuple[Finding, ...] | None = None) -> dict[str, Any]:
+    """``notes``: the findings of rendering the notes and summary (None: the study has none)."""
     return {
         "page": frame,
         "networks": tuple(NetworkChecks(
@@ -84,4 +103,7 @@ def checks_context(frame: PageFrame, networks: list[NetworkPageInput]) -> dict[s
             page_href=frame.href(network_page(item.id)), rules=_rules(item),
             groups=finding_groups(item.analysis.findings),
         ) for item in networks),
+        "notes": None if notes is None else NotesChecks(
+            title="Notes and summary", anchor="notes", rules=NOTES_RULES,
+            groups=finding_groups(notes)),
     }

@@ -1,7 +1,14 @@
-"""Markdown notes as safe HTML: raw HTML is shown as text unless the study allows it.
+"""Markdown notes as safe HTML: what markdown makes passes an allow-list, and raw HTML is text
+unless the study allows it.
 
 python-markdown passes raw HTML through by default; removing its ``html_block`` preprocessor
-and ``html`` inline pattern makes it treat ``<tag>`` as text, which the serializer escapes.
+and ``html`` inline pattern makes it treat ``<tag>`` as text, which the serializer escapes. Link
+targets are still written as the author typed them, and a browser reads
+``[x](&#106;avascript:...)`` as a ``javascript:`` link, so the HTML then goes through nh3 (the
+ammonia sanitiser), which decodes character references and drops control characters as a
+browser's parser does before it checks tags, attributes and URL schemes against the allow-lists
+below. Images must come from the site itself: one from anywhere else is shown as its alt text
+and reported, because the site loads nothing from outside.
 """
 
 from __future__ import annotations
@@ -10,41 +17,87 @@ import html
 import re
 import xml.etree.ElementTree as etree
 from dataclasses import dataclass
+from html.parser import HTMLParser
 from typing import Callable
 
 import markdown
+import nh3
 from markdown.extensions import Extension
+from markdown.postprocessors import Postprocessor
 from markdown.treeprocessors import Treeprocessor
 from markdown.util import HTML_PLACEHOLDER_RE
 from markupsafe import Markup
 
+from ..errors import DataError, Finding
+
 __all__ = ["MARKDOWN_EXTENSIONS", "RenderedNote", "render_markdown"]
 
 MARKDOWN_EXTENSIONS = ("tables", "fenced_code")
-# Schemes that run code when a reader follows the link; dropped from markdown links and images.
-# Raw HTML, when [site] allow_html lets it through, is the study author's own and kept as written.
-_UNSAFE_SCHEME = re.compile(r"^\s*(javascript|vbscript|data)\s*:", re.IGNORECASE)
-_CONTROL = re.compile(r"[\x00-\x20]+")
+# Column alignment as align="left" rather than style="text-align: left": the pages' CSP allows no
+# inline styles.
+_EXTENSION_CONFIGS = {"tables": {"use_align_attribute": True}}
+
+# What python-markdown writes with MARKDOWN_EXTENSIONS, plus the span an external image becomes.
+_TAGS = frozenset({
+    "h1", "h2", "h3", "h4", "h5", "h6", "p", "br", "hr", "blockquote", "pre", "code",
+    "em", "strong", "ul", "ol", "li", "a", "img", "span",
+    "table", "thead", "tbody", "tr", "th", "td",
+})
+_ATTRIBUTES = {
+    "a": {"href", "title"},
+    "img": {"src", "alt", "title"},
+    "code": {"class"},  # language-<name> from a fenced block's info string
+    "span": {"class"},  # image-alt
+}
+_ALIGN = {"left", "center", "right"}
+_ATTRIBUTE_VALUES = {"th": {"scope": {"col", "row"}, "align": _ALIGN}, "td": {"align": _ALIGN}}
+# Schemes a link may use; relative links always pass. Images pass only as relative paths.
+_LINK_SCHEMES = frozenset({"http", "https", "mailto"})
+_CLASSES = {"code": re.compile(r"language-[\w+#.-]+"), "span": re.compile(r"image-alt")}
+
+# How a URL parser reads the start of an address (WHATWG URL standard, "basic URL parser"): it
+# trims C0 controls and spaces, deletes tabs and newlines anywhere, then looks for a scheme or a
+# host ("//host", where a backslash counts as a slash).
+_URL_TRIM = "".join(chr(c) for c in range(0x21))
+_TAB_OR_NEWLINE = re.compile(r"[\t\n\r]")
+_SCHEME = re.compile(r"[A-Za-z][A-Za-z0-9+.\-]*:")
+_HOST = re.compile(r"[/\\]{2}")
+
 _TAG = re.compile(r"<[^>]*>")
 _MD_LINK = re.compile(r"^(?P<stem>[^/:?#]+)\.md(?P<fragment>#[^\s]*)?$")
+_EXTERNAL_IMAGE = ("external image not loaded; the site loads nothing from outside — copy the "
+                   "image into the study folder and link it relatively")
+_TOO_DEEP = ("is nested too deeply to render (lists or quotes inside one another); flatten the "
+             "deepest part")
+_LONGEST_VALUE = 200  # a data: image can be megabytes; the checks page shows its start
 
 
 @dataclass(frozen=True)
 class RenderedNote:
     html: Markup
     title: str | None  # the text of a level-1 heading that opens the note, if any
+    findings: tuple[Finding, ...] = ()  # images not loaded, with the line where each is written
+
+
+def _is_local_image(src: str) -> bool:
+    """Whether an image address (as a browser reads it, references decoded) stays on the site:
+    a path with neither a scheme nor a host."""
+    address = _TAB_OR_NEWLINE.sub("", src.strip(_URL_TRIM))
+    return not (_SCHEME.match(address) or _HOST.match(address))
 
 
 class _LinksAndHeadings(Treeprocessor):
-    """Drop unsafe link targets, point links to other notes at their pages, give table headers
-    their scope, shift headings, and remember a level-1 heading that opens the note as its title."""
+    """Point links to other notes at their pages, show external images as their alt text, give
+    table headers their scope, shift headings, and remember a level-1 heading that opens the note
+    as its title."""
 
     def __init__(self, md: markdown.Markdown, *, note_href: Callable[[str], str | None],
-                 shift: int, drop_title: str | None):
+                 shift: int, drop_title: str | None, dropped_images: list[tuple[str, str]]):
         super().__init__(md)
         self.note_href = note_href
         self.shift = shift
         self.drop_title = drop_title
+        self.dropped_images = dropped_images  # (address as written, address as read)
         self.title: str | None = None
 
     def _text(self, element: etree.Element) -> str:
@@ -58,6 +111,18 @@ class _LinksAndHeadings(Treeprocessor):
 
         return " ".join(HTML_PLACEHOLDER_RE.sub(unstash, raw).split())
 
+    def _show_alt_text(self, image: etree.Element) -> None:
+        written = image.get("src", "")
+        read = html.unescape(written)  # python-markdown keeps references; the browser decodes them
+        if _is_local_image(read):
+            return
+        self.dropped_images.append((written, read))
+        alt = image.get("alt") or "(image not loaded)"
+        image.tag = "span"
+        image.attrib.clear()
+        image.set("class", "image-alt")
+        image.text = alt
+
     def run(self, root: etree.Element) -> None:
         first = next(iter(root), None)
         if first is not None and first.tag == "h1":
@@ -65,22 +130,69 @@ class _LinksAndHeadings(Treeprocessor):
             if self.drop_title is not None and self.title.casefold() == self.drop_title.casefold():
                 root.remove(first)
         for element in root.iter():
-            for attribute in ("href", "src"):
-                value = element.get(attribute)
-                if value is None:
-                    continue
-                if _UNSAFE_SCHEME.match(_CONTROL.sub("", value)):
-                    del element.attrib[attribute]
-                    continue
-                link = _MD_LINK.match(value)
-                if attribute == "href" and link:
-                    target = self.note_href(link.group("stem"))
-                    if target is not None:
-                        element.set("href", target + (link.group("fragment") or ""))
+            if element.tag == "img":
+                self._show_alt_text(element)
+            link = _MD_LINK.match(element.get("href", "")) if element.tag == "a" else None
+            if link:
+                target = self.note_href(link.group("stem"))
+                if target is not None:
+                    element.set("href", target + (link.group("fragment") or ""))
             if element.tag == "th" and "scope" not in element.attrib:
                 element.set("scope", "col")  # markdown tables have one header row
             if self.shift and re.fullmatch(r"h[1-6]", element.tag):
                 element.tag = f"h{min(6, int(element.tag[1]) + self.shift)}"
+
+
+def _sanitise(text: str, dropped_images: list[tuple[str, str]]) -> str:
+    """Keep only the allow-listed tags, attributes and URL schemes (nh3 decodes references and
+    strips control characters before it checks them)."""
+
+    def attribute_filter(tag: str, attribute: str, value: str) -> str | None:
+        # nh3 calls this with the decoded value, after dropping URLs of other schemes; it must
+        # not raise (an exception only strips the attribute).
+        if tag == "img" and attribute == "src" and not _is_local_image(value):
+            dropped_images.append((value, value))
+            return None
+        if attribute == "class":
+            pattern = _CLASSES.get(tag)
+            kept = [name for name in value.split() if pattern and pattern.fullmatch(name)]
+            return " ".join(kept) or None
+        return value
+
+    return nh3.clean(text, tags=set(_TAGS), attributes={k: set(v) for k, v in _ATTRIBUTES.items()},
+                     tag_attribute_values=_ATTRIBUTE_VALUES, url_schemes=set(_LINK_SCHEMES),
+                     attribute_filter=attribute_filter, link_rel=None, strip_comments=True)
+
+
+class _SanitiseBeforeRawHtml(Postprocessor):
+    """With ``allow_html``: sanitise what markdown made, before the author's raw HTML, kept as
+    written, goes back in (python-markdown's ``raw_html`` postprocessor, priority 30)."""
+
+    def __init__(self, md: markdown.Markdown, dropped_images: list[tuple[str, str]]):
+        super().__init__(md)
+        self.dropped_images = dropped_images
+
+    def run(self, text: str) -> str:
+        # python-markdown writes the "&" of its own references as a placeholder that its
+        # amp_substitute postprocessor (priority 20) restores; restore it first so that the
+        # sanitiser sees the references a browser will decode.
+        return _sanitise(text.replace(markdown.util.AMP_SUBSTITUTE, "&"), self.dropped_images)
+
+
+class _RawImageSources(HTMLParser):
+    """The external image addresses left in the author's raw HTML (kept with ``allow_html``;
+    the pages' Content-Security-Policy stops a browser from loading them)."""
+
+    def __init__(self, body: str):
+        super().__init__(convert_charrefs=True)
+        self.external: list[str] = []
+        self.feed(body)
+        self.close()
+
+    def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+        src = dict(attrs).get("src") if tag == "img" else None
+        if src is not None and not _is_local_image(src):
+            self.external.append(src)
 
 
 class _NoteExtension(Extension):
@@ -94,23 +206,61 @@ class _NoteExtension(Extension):
         if not self.allow_html:
             md.preprocessors.deregister("html_block")
             md.inlinePatterns.deregister("html")
+        else:
+            md.postprocessors.register(_SanitiseBeforeRawHtml(
+                md, self.processor_args["dropped_images"]), "netfolio_sanitise", 35)
         self.processor = _LinksAndHeadings(md, **self.processor_args)
         # Below the inline processor (priority 20), so link and heading text is final.
         md.treeprocessors.register(self.processor, "netfolio_links_headings", 5)
 
 
+def _image_findings(text: str, file: str, dropped: list[tuple[str, str]]) -> tuple[Finding, ...]:
+    """One finding per image not loaded, on the line where its address is written (best effort:
+    the n-th image with an address is looked for after the (n-1)-th)."""
+    findings, searched_from = [], {}
+    for written, read in dropped:
+        start = searched_from.get(read, 0)
+        index = text.find(written, start) if written else -1
+        if index < 0 and read != written:
+            index = text.find(read, start)
+        line = None
+        if index >= 0:
+            searched_from[read] = index + 1
+            line = text.count("\n", 0, index) + 1
+        value = read if len(read) <= _LONGEST_VALUE else read[:_LONGEST_VALUE] + "…"
+        findings.append(Finding("fix", file, _EXTERNAL_IMAGE, line=line, value=value))
+    return tuple(sorted(findings, key=lambda f: (f.line is None, f.line or 0)))
+
+
 def render_markdown(text: str, *, allow_html: bool = False,
                     note_href: Callable[[str], str | None] = lambda stem: None,
-                    shift_headings: int = 0, drop_title: str | None = None) -> RenderedNote:
+                    shift_headings: int = 0, drop_title: str | None = None,
+                    file: str = "note") -> RenderedNote:
     """Render one note.
 
     ``note_href(stem)`` gives the page address for a link to ``<stem>.md`` (None leaves it);
     ``shift_headings`` demotes headings (1: h1 -> h2) for notes shown inside another page;
-    ``drop_title`` removes a leading level-1 heading with that text (the page already shows it).
+    ``drop_title`` removes a leading level-1 heading with that text (the page already shows it);
+    ``file`` names the note in findings and errors (``notes/x.md``).
+
+    Without ``allow_html`` the whole page goes through the sanitiser; with it, the author's raw
+    HTML is kept as written (pages' Content-Security-Policy still stops any script in it from
+    running) and everything markdown made from the text is sanitised.
+    Raises DataError when the note is nested too deeply for python-markdown, which recurses.
     """
+    dropped: list[tuple[str, str]] = []
     extension = _NoteExtension(allow_html=allow_html, processor_args={
-        "note_href": note_href, "shift": shift_headings, "drop_title": drop_title})
-    md = markdown.Markdown(extensions=[*MARKDOWN_EXTENSIONS, extension], output_format="html")
-    body = md.convert(text)
+        "note_href": note_href, "shift": shift_headings, "drop_title": drop_title,
+        "dropped_images": dropped})
+    md = markdown.Markdown(extensions=[*MARKDOWN_EXTENSIONS, extension],
+                           extension_configs=_EXTENSION_CONFIGS, output_format="html")
+    try:
+        body = md.convert(text)
+    except RecursionError:
+        raise DataError(Finding("error", file, _TOO_DEEP)) from None
+    if allow_html:
+        dropped += [(src, src) for src in _RawImageSources(body).external]
+    else:
+        body = _sanitise(body, dropped)
     title = extension.processor.title if extension.processor else None
-    return RenderedNote(Markup(body), title)
+    return RenderedNote(Markup(body), title, _image_findings(text, file, dropped))

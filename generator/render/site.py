@@ -2,11 +2,11 @@
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Any, Callable
 
-from markupsafe import Markup
-
 from ..config import StudyConfig
+from ..errors import Finding
 from .checks import checks_context
 from .downloads import downloads_context
 from .inputs import NetworkPageInput
@@ -19,7 +19,7 @@ from .site_map import (CHECKS, DOWNLOADS, INDEX, METHODS, SiteMap, network_page,
                        note_page, page_href)
 from .theme import load_theme
 
-__all__ = ["render_site"]
+__all__ = ["RenderedNotes", "render_notes", "render_site"]
 
 TABLE_SCRIPT = "static/table.js"
 
@@ -35,6 +35,39 @@ def _note_linker(page: str, stems: set[str]) -> Callable[[str], str | None]:
     return href
 
 
+@dataclass(frozen=True)
+class RenderedNotes:
+    notes: dict[str, RenderedNote]  # by stem, in order
+    summary: RenderedNote | None
+    findings: tuple[Finding, ...]  # of every note and the summary, each once
+
+
+def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None) -> RenderedNotes:
+    """Render every note and the front page's summary as the site shows them.
+
+    ``build`` gets them through ``render_site``; ``check`` calls this alone, so it finds what
+    rendering would refuse (a DataError for a note nested too deeply) and what it reports.
+    """
+    allow_html = study.site.allow_html
+    stems = set(notes)
+    rendered = {
+        stem: render_markdown(notes[stem], allow_html=allow_html,
+                              note_href=_note_linker(note_page(stem), stems),
+                              file=study.relative(study.root / "notes" / f"{stem}.md"))
+        for stem in sorted(notes)
+    }
+    front = None
+    if summary is not None:
+        front = render_markdown(summary, allow_html=allow_html,
+                                note_href=_note_linker(INDEX, stems), shift_headings=1,
+                                drop_title=study.title,
+                                file=study.relative(study.summary) if study.summary else "summary")
+    # The summary is often notes/index.md, a note too: the same finding is listed once.
+    found = [f for note in (*rendered.values(), front) if note is not None for f in note.findings]
+    findings = tuple(sorted(dict.fromkeys(found), key=lambda f: (f.file, f.line or 0)))
+    return RenderedNotes(rendered, front, findings)
+
+
 def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
                 summary: str | None, build_info: dict[str, str],
                 link_dois: bool = True) -> dict[str, bytes]:
@@ -47,13 +80,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
-    allow_html = study.site.allow_html
-    stems = set(notes)
-    rendered: dict[str, RenderedNote] = {
-        stem: render_markdown(notes[stem], allow_html=allow_html,
-                              note_href=_note_linker(note_page(stem), stems))
-        for stem in sorted(notes)
-    }
+    written = render_notes(study, notes, summary)
+    rendered = written.notes
     site = SiteMap(
         study_title=study.title,
         networks=[(item.id, item.title) for item in networks],
@@ -67,11 +95,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
     pages: list[tuple[str, str, dict[str, Any]]] = []
 
-    summary_html: Markup | None = None
-    if summary is not None:
-        summary_html = render_markdown(summary, allow_html=allow_html,
-                                       note_href=_note_linker(INDEX, stems), shift_headings=1,
-                                       drop_title=study.title).html
+    summary_html = written.summary.html if written.summary is not None else None
     pages.append((INDEX, "index.html", overview_context(
         site.frame(INDEX, study.title), networks, summary=summary_html,
         built=build_info.get("built", ""))))
@@ -86,8 +110,9 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
 
     pages.append((METHODS, "methods.html", methods_context(
         site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
-    pages.append((CHECKS, "checks.html",
-                  checks_context(site.frame(CHECKS, "Data checks"), networks)))
+    note_findings = written.findings if notes or summary is not None else None
+    pages.append((CHECKS, "checks.html", checks_context(
+        site.frame(CHECKS, "Data checks"), networks, notes=note_findings)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
     pages.append((DOWNLOADS, "downloads.html",

@@ -1,0 +1,240 @@
+"""The built site in a real browser, opened from disk: the Content-Security-Policy lets the site's
+own stylesheet, script and figures through, and nothing in a note runs as script.
+
+Headless Chromium from the Debian package, driven by Playwright (the browser download of
+Playwright is not used). CI installs both (.ci/run, the test extra); without them this module
+is skipped.
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+from pathlib import Path
+from typing import Iterator
+
+import pytest
+
+from generator.build import build_study
+
+CHROMIUM = Path("/usr/bin/chromium")
+if not CHROMIUM.exists():
+    pytest.skip("needs Chromium at /usr/bin/chromium (apt-get install chromium)",
+                allow_module_level=True)
+sync_api = pytest.importorskip("playwright.sync_api",
+                               reason="needs Playwright for Python (pip install -e '.[test]')")
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
+THEME_CSS = Path(__file__).resolve().parents[1] / "themes" / "default" / "static" / "site.css"
+CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
+                 "--disable-component-update", "--no-first-run", "--disable-sync"]
+PAGES = ["index.html", "networks/advice/index.html", "networks/advice/nodes.html",
+         "methods.html", "checks.html", "downloads.html", "notes/methods.html"]
+# The four spellings of a javascript: link from the issue, each hidden from a plain text match.
+ENCODED_LINKS = ["[one](&#106;avascript:alert(1))", "[two](javascript&#58;alert(2))",
+                 "[three](java&#x09;script:alert(3))", "[four](java&#10;script:alert(4))"]
+# With [site] allow_html = true the author's HTML is kept as written; the policy stops it running.
+RAW_SCRIPT = ('<script>alert("inline")</script>\n\n'
+              '<p><img src="missing.png" onerror="alert(\'onerror\')" alt="raw image">\n'
+              '<a id="raw-link" href="javascript:alert(\'raw\')">raw link</a>\n'
+              '<a id="raw-click" href="#" onclick="alert(\'onclick\')">raw handler</a></p>\n')
+
+# Records every policy violation, from the first byte of each page on (an init script runs
+# outside the page's policy).
+WATCH_VIOLATIONS = """
+window.__violations = [];
+document.addEventListener("securitypolicyviolation", (event) => {
+  window.__violations.push(event.violatedDirective + " " + (event.blockedURI || "inline"));
+});
+"""
+# Waits (at most 10 s) for every figure, scrolling each into view: they load lazily.
+LOAD_FIGURES = """
+async () => {
+  const images = Array.from(document.querySelectorAll("figure img"));
+  for (const image of images) {
+    image.scrollIntoView();
+    const timeout = new Promise((resolve) => setTimeout(resolve, 10000));
+    await Promise.race([image.decode().catch(() => null), timeout]);
+  }
+  return images.map((image) => [image.getAttribute("src"), image.naturalWidth]);
+}
+"""
+UNSAFE_ADDRESSES = """
+() => {
+  const protocol = (address) => new URL(address, location).protocol;
+  const links = Array.from(document.querySelectorAll("a"))
+    .filter((a) => ["javascript:", "data:", "vbscript:"].includes(protocol(a.href)))
+    .map((a) => a.outerHTML);
+  const images = Array.from(document.images)
+    .filter((image) => image.src && protocol(image.src) !== "file:")
+    .map((image) => image.outerHTML);
+  return links.concat(images);
+}
+"""
+
+
+def _write_study(root: Path, note: str, *, allow_html: bool = False) -> Path:
+    (root / "data").mkdir(parents=True)
+    (root / "notes").mkdir()
+    (root / "data" / "ties.csv").write_text("source,target\na,b\nb,c\nc,a\n", encoding="utf-8")
+    (root / "notes" / "links.md").write_text(note, encoding="utf-8")
+    site = "\n[site]\nallow_html = true\n" if allow_html else ""
+    (root / "study.toml").write_text('[study]\ntitle = "Links"\n\n[[network]]\nid = "ties"\n'
+                                     f'edges = "data/ties.csv"\n{site}', encoding="utf-8")
+    return root
+
+
+@pytest.fixture(scope="module")
+def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    work = tmp_path_factory.mktemp("browser")
+    study = shutil.copytree(EXAMPLE, work / "example", ignore=shutil.ignore_patterns("output"))
+    return build_study(study, output=work / "site").output
+
+
+@pytest.fixture(scope="module")
+def note_sites(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
+    """A study whose note holds the encoded links (and an outside image), built twice: with raw
+    HTML escaped, and with allow_html and raw script added."""
+    work = tmp_path_factory.mktemp("notes")
+    links = "# Links\n\n" + "\n\n".join(ENCODED_LINKS) + "\n\n![outside](https://img.example.org/x.png)\n"
+    built = {}
+    for name, allow_html, note in (("escaped", False, links),
+                                   ("allow_html", True, links + "\n" + RAW_SCRIPT)):
+        study = _write_study(work / name, note, allow_html=allow_html)
+        built[name] = build_study(study, output=work / f"{name}-site").output
+    return built
+
+
+@pytest.fixture(scope="module")
+def browser() -> Iterator[object]:
+    with sync_api.sync_playwright() as playwright:
+        chromium = playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        yield chromium
+        chromium.close()
+
+
+class _Tab:
+    """One page in the browser with what it reported: console errors and warnings, script
+    errors, policy violations and dialogs (dismissed)."""
+
+    def __init__(self, browser) -> None:
+        self.page = browser.new_page()
+        self.page.set_default_timeout(15000)
+        self.console: list[str] = []
+        self.dialogs: list[str] = []
+        self.page.add_init_script(WATCH_VIOLATIONS)
+        self.page.on("console", lambda message: self.console.append(
+            f"{message.type}: {message.text}") if message.type in ("error", "warning") else None)
+        self.page.on("pageerror", lambda error: self.console.append(f"pageerror: {error}"))
+        self.page.on("dialog", self._dialog)
+
+    def _dialog(self, dialog) -> None:
+        self.dialogs.append(dialog.message)
+        dialog.dismiss()
+
+    def open(self, path: Path) -> None:
+        self.page.goto(path.as_uri())
+        self.page.wait_for_load_state("load")
+
+    def violations(self) -> list[str]:
+        return self.page.evaluate("window.__violations") + [
+            line for line in self.console if "Content Security Policy" in line]
+
+
+@pytest.fixture()
+def tab(browser) -> Iterator[_Tab]:
+    opened = _Tab(browser)
+    yield opened
+    opened.page.close()
+
+
+def _paper_colour() -> str:
+    """The theme's --paper colour as the browser reports a computed colour."""
+    hex_colour = re.search(r"--paper:\s*#([0-9a-fA-F]{6})", THEME_CSS.read_text("utf-8")).group(1)
+    red, green, blue = (int(hex_colour[i:i + 2], 16) for i in (0, 2, 4))
+    return f"rgb({red}, {green}, {blue})"
+
+
+@pytest.mark.parametrize("path", PAGES)
+def test_a_page_opened_from_disk_breaks_no_rule_of_its_policy_and_has_its_stylesheet(
+        site: Path, tab: _Tab, path: str) -> None:
+    tab.open(site / path)
+    tab.page.evaluate(LOAD_FIGURES)
+    assert tab.violations() == []
+    assert tab.console == []
+    assert tab.page.evaluate("getComputedStyle(document.body).backgroundColor") == _paper_colour()
+
+
+def test_the_policy_of_the_pages_is_in_force(site: Path, tab: _Tab) -> None:
+    # 'self' must not be so wide that it admits inline script: the same policy on a page of the
+    # site refuses it (and says so).
+    tab.open(site / "index.html")
+    tab.page.evaluate("""() => {
+      const script = document.createElement("script");
+      script.textContent = "window.__ran = true;";
+      document.head.appendChild(script);
+    }""")
+    tab.page.wait_for_timeout(100)
+    assert tab.page.evaluate("window.__ran === undefined")
+    assert any("script-src" in violation for violation in tab.violations())
+
+
+def test_clicking_a_column_heading_sorts_the_node_table(site: Path, tab: _Tab) -> None:
+    tab.open(site / "networks/advice/nodes.html")
+    headers = tab.page.locator("#node-table thead th")
+    numeric = [i for i in range(headers.count())
+               if headers.nth(i).get_attribute("data-type") == "number"][0]
+    values = f"""() => Array.from(document.querySelectorAll("#node-table tbody tr"))
+                 .map((row) => row.cells[{numeric}].getAttribute("data-value"))
+                 .filter((value) => value !== null && value !== "").map(Number)"""
+    before = tab.page.evaluate(values)
+    headers.nth(numeric).locator("button.sort").click()
+    first = tab.page.evaluate(values)
+    assert first == sorted(before, reverse=True)  # numbers sort high to low first
+    assert headers.nth(numeric).get_attribute("aria-sort") == "descending"
+    headers.nth(numeric).locator("button.sort").click()
+    assert tab.page.evaluate(values) == sorted(before)
+    names = """() => Array.from(document.querySelectorAll("#node-table tbody tr"))
+               .map((row) => row.cells[0].textContent.trim())"""
+    headers.nth(0).locator("button.sort").click()
+    ids = tab.page.evaluate(names)
+    assert ids == sorted(ids, key=str.casefold) and len(ids) > 1
+
+
+@pytest.mark.parametrize("network", ["advice", "coworking"])
+def test_every_figure_loads(site: Path, tab: _Tab, network: str) -> None:
+    tab.open(site / "networks" / network / "index.html")
+    figures = tab.page.evaluate(LOAD_FIGURES)
+    assert figures, "the network page shows no figure"
+    assert [src for src, width in figures if width <= 0] == []
+    assert tab.violations() == []
+
+
+def test_no_link_in_a_note_resolves_to_script_and_no_image_comes_from_outside(
+        note_sites: dict[str, Path], tab: _Tab) -> None:
+    tab.open(note_sites["escaped"] / "notes" / "links.html")
+    assert tab.page.evaluate(UNSAFE_ADDRESSES) == []
+    assert tab.page.locator(".prose .image-alt").inner_text() == "outside"
+    # With allow_html the author's own raw link is kept as written; the next test shows it
+    # cannot run.
+    tab.open(note_sites["allow_html"] / "notes" / "links.html")
+    assert tab.page.evaluate(UNSAFE_ADDRESSES) == [
+        "<a id=\"raw-link\" href=\"javascript:alert('raw')\">raw link</a>"]
+
+
+@pytest.mark.parametrize("variant", ["escaped", "allow_html"])
+def test_clicking_every_link_of_a_note_opens_no_dialog(note_sites: dict[str, Path], tab: _Tab,
+                                                       variant: str) -> None:
+    page_path = note_sites[variant] / "notes" / "links.html"
+    tab.open(page_path)
+    links = tab.page.locator(".prose a")
+    labels = [links.nth(i).inner_text() for i in range(links.count())]
+    assert {"one", "two", "three", "four"} <= set(labels)
+    for i in range(links.count()):
+        links.nth(i).click()
+        tab.page.wait_for_timeout(100)
+        if tab.page.url.split("#")[0] != page_path.as_uri():
+            tab.open(page_path)  # a link that led elsewhere: come back for the next one
+    assert tab.dialogs == []
+    if variant == "allow_html":  # the raw script, handlers and link were there, and refused
+        assert len(tab.violations()) >= 3
