@@ -138,7 +138,9 @@ def by_id(analysis: NetworkAnalysis, column: str) -> dict[str, float]:
 
 
 def add_strength_and_length(graph: nx.Graph, weight_means: str = "strength") -> nx.Graph:
-    """Give every edge the "strength" and "length" attributes the design defines."""
+    """Give every edge the "strength" and "length" attributes as the project reads a weight
+    (weight_means in the README; the methods page words it: read as strength, a tie's path
+    length is 1/weight; read as distance, its strength is 1/weight)."""
     for _, _, data in graph.edges(data=True):
         w = float(data.get("weight", 1.0))
         if weight_means == "strength":
@@ -149,7 +151,8 @@ def add_strength_and_length(graph: nx.Graph, weight_means: str = "strength") -> 
 
 
 def undirected_version_nx(graph: nx.Graph) -> nx.Graph:
-    """The design's undirected version, built by hand: reciprocal ties merge with strengths summed.
+    """The undirected version the README defines, built by hand: reciprocal ties merge with
+    strengths summed.
 
     (networkx's own ``to_undirected`` keeps the data of one of the two ties, not their sum.)
     """
@@ -168,7 +171,9 @@ def undirected_version_nx(graph: nx.Graph) -> nx.Graph:
 
 
 def karate_graph() -> nx.Graph:
-    """The karate club, unweighted (REFERENCES.md values are unweighted), ids "0".."33".
+    """The karate club (Zachary 1977, An information flow model for conflict and fission in
+    small groups, J. Anthropological Research 33(4):452-473) as networkx ships it, unweighted
+    (the known answers the tests check are of the unweighted graph), ids "0".."33".
 
     The two club names are recoded to neutral codes (assortativity does not depend on the
     labels), and an invented whole-number attribute ``tenure`` is added for numeric

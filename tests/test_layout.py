@@ -1,4 +1,4 @@
-"""The seeded layout shared by every figure, and the references an analysis cites."""
+"""The seeded layout shared by every figure (generator/analyse/layout.py)."""
 
 from __future__ import annotations
 
@@ -20,14 +20,3 @@ def test_isolates_sit_in_a_row_below_the_connected_part(tmp_path) -> None:
     lowest_tied = min(layout[v][1] for v in "abc")
     assert layout["x"][1] < lowest_tied and layout["y"][1] < lowest_tied
     assert layout["x"][1] == layout["y"][1] and layout["x"][0] != layout["y"][0]
-
-
-def test_community_references_are_cited_only_when_communities_were_searched(tmp_path) -> None:
-    tied = analyse(load_network(edge_study(tmp_path / "a", "source,target\na,b\nb,c\n")))
-    keys = [r.key for r in tied.references]
-    assert {"traag2019", "hubert1985", "danon2005", "okabe2008"} <= set(keys)
-    empty = analyse(load_network(edge_study(tmp_path / "b", "source,target\na,a\n",
-                                            nodes="id\na\nb\n")))
-    keys = [r.key for r in empty.references]
-    assert "traag2019" not in keys and "hubert1985" not in keys
-    assert len(keys) == len(set(keys))
