@@ -15,7 +15,7 @@ from typing import Callable, TextIO
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
 from .config import StudyConfig, load_study
-from .draw import draw_network
+from .draw import FigureSettings, draw_network
 from .errors import ConfigError, DataError, Finding
 from .ingest import CleanNetwork, read_network
 from .publish import check_output_folder, datapackage_json, network_files, write_site
@@ -24,6 +24,7 @@ from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
 from .render.site import render_notes
 from .render.theme import load_theme
+from .vocabulary import count_of
 
 __all__ = ["BuildResult", "Progress", "build_study", "check_study"]
 
@@ -52,10 +53,6 @@ class BuildResult:
     networks: list[NetworkAnalysis] = field(default_factory=list)
 
 
-def _n(count: int, singular: str, plural: str | None = None) -> str:
-    return f"{count} {singular if count == 1 else plural or singular + 's'}"
-
-
 def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
     """Read every network, collecting the errors of all of them before giving up."""
     cleaned, errors = [], []
@@ -67,8 +64,8 @@ def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
             continue
         cleaned.append(clean)
         fixes = sum(1 for f in clean.checks.findings if f.level == "fix")
-        progress.stage("ingest", f"{net.id}: {_n(len(clean.nodes), 'node')}, "
-                       f"{_n(len(clean.edges), 'tie')}, {_n(fixes, 'fix', 'fixes')}")
+        progress.stage("ingest", f"{net.id}: {count_of(len(clean.nodes), 'node')}, "
+                       f"{count_of(len(clean.edges), 'tie')}, {count_of(fixes, 'fix', 'fixes')}")
     if errors:
         raise DataError(errors)
     return cleaned
@@ -172,7 +169,7 @@ def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
 
 def _build_holding_lock(study: StudyConfig, progress: Progress) -> BuildResult:
     """Every stage after config load; the caller holds the study's lock."""
-    progress.stage("config", f"read {study.study_file.name}: {_n(len(study.networks), 'network')}")
+    progress.stage("config", f"read {study.study_file.name}: {count_of(len(study.networks), 'network')}")
     cleaned = _read_all(study, progress)
     notes, summary = _read_notes(study)
 
@@ -181,19 +178,20 @@ def _build_holding_lock(study: StudyConfig, progress: Progress) -> BuildResult:
         analysis = analyse_network(clean, communities=study.communities, measures=study.measures,
                                    seed=study.seed)
         analyses.append(analysis)
-        progress.stage("analyse", f"{clean.id}: {_n(len(analysis.measures.columns), 'measure')}, "
-                       f"{_n(analysis.communities.count, 'community', 'communities')}")
+        progress.stage("analyse", f"{clean.id}: {count_of(len(analysis.measures.columns), 'measure')}, "
+                       f"{count_of(analysis.communities.count, 'community', 'communities')}")
 
     inputs = []
     files: dict[str, bytes] = {}
     for clean, analysis in zip(cleaned, analyses):
-        figures = draw_network(analysis)
+        figures = draw_network(analysis, FigureSettings(color_by=clean.config.color_by,
+                                                        size_by=clean.config.size_by))
         inputs.append(NetworkPageInput(config=clean.config, analysis=analysis, figures=figures))
         for figure in figures:
             base = f"networks/{analysis.network_id}/figures/{figure.name}"
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
-        progress.stage("draw", f"{analysis.network_id}: {_n(len(figures), 'figure')}")
+        progress.stage("draw", f"{analysis.network_id}: {count_of(len(figures), 'figure')}")
 
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=_build_info())
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")

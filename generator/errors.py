@@ -47,7 +47,7 @@ class Finding:
     ``line`` counts as a text editor does: the header is line 1 of a CSV file.
     """
 
-    level: str  # "error" | "fix" | "note"
+    level: str  # "error" | "warning" | "fix" | "note"
     file: str
     message: str
     line: int | None = None
