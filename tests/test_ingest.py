@@ -442,7 +442,7 @@ def test_analysis_does_not_depend_on_the_global_random_generator(tmp_path):
     for state in (1, 2):  # stands for two fresh processes, whose generators differ
         random.seed(state)
         results.append(analyse(clean, runs=2).measures)
-    # Rule of the house (DESIGN.md): same inputs and seed give byte-identical output.
+    # Same inputs and seed give byte-identical output (README, Output reference).
     pd.testing.assert_frame_equal(results[0], results[1], check_exact=True)
 
 

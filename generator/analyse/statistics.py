@@ -58,7 +58,8 @@ def _assortativity(graph: ig.Graph, values: pd.Series, name: str) -> Statistic:
 def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[float],
                        attributes: pd.DataFrame, modularity: float | None,
                        communities: int) -> list[Statistic]:
-    """Every network statistic that applies, in the order of the design's list."""
+    """Every network statistic that applies, in a fixed order (size, reach, paths, mixing,
+    communities, centralization)."""
     n, m = graph.vcount(), graph.ecount()
     directed = graph.is_directed()
     undirected = undirected_version(graph)

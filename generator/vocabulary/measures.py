@@ -93,8 +93,7 @@ MEASURES: tuple[MeasureEntry, ...] = (
             definition="Wasserman-Faust form: ((r-1)/(n-1)) x ((r-1)/sum of path lengths from the "
             "r-1 nodes that reach the node); 0 when no node reaches it. Directed: paths to the "
             "node.",
-            meaning="Closeness is one over the mean path length between a node and the nodes "
-            "that reach it, scaled down when some cannot: higher means closer to the others.",
+            meaning="Closeness is higher the shorter the paths between a node and the others.",
             references=("wasserman1994",)),
     MeasureEntry(name="harmonic", title="Harmonic closeness", plain="harmonic closeness",
             reads="length", path_based=True, histogram=True,
