@@ -741,3 +741,18 @@ def test_real_figures_from_the_draw_stage_are_shown_with_their_alt_text(tmp_path
     images = page.all("img")
     assert [img["src"] for img in images] == [f"figures/{f.name}.svg" for f in items[1].figures]
     assert all(img["alt"] for img in images)
+
+
+def test_checks_page_shows_warnings_in_their_own_group(tmp_path):
+    # Ids equal apart from case are two nodes, with a warning the analyst must see.
+    root = tmp_path / "study"
+    (root / "data").mkdir(parents=True)
+    (root / "data" / "edges.csv").write_text("source,target\na,b\nA,b\n", encoding="utf-8")
+    (root / "study.toml").write_text('[study]\ntitle = "T"\n[[network]]\nid = "n"\n'
+                                     'edges = "data/edges.csv"\n', encoding="utf-8")
+    from generator.build import build_study
+
+    build_study(root, output=tmp_path / "site")
+    html = (tmp_path / "site" / "checks.html").read_text(encoding="utf-8")
+    warnings = html[html.index('id="network-n-warning"'):html.index('id="network-n-fix"')]
+    assert "differ only in upper or lower case" in warnings and "&#39;A&#39; and &#39;a&#39;" in warnings

@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from ..errors import Finding
-from .display import MISSING
+from ..vocabulary import MISSING, count
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page
 
@@ -15,7 +15,7 @@ __all__ = ["LEVEL_TITLES", "NOTES_RULES", "FindingGroup", "FindingRow", "Network
            "NotesChecks", "checks_context", "finding_groups"]
 
 # In the order shown. Errors stop a build, so a built site normally shows only fixes and notes.
-LEVEL_TITLES = {"error": "Errors", "fix": "Fixes applied", "note": "Notes"}
+LEVEL_TITLES = {"error": "Errors", "warning": "Warnings", "fix": "Fixes applied", "note": "Notes"}
 _NONE_FOUND = {"fix": "No fixes were needed.", "note": "Nothing else to note."}
 
 # What rendering does to every note and the front-page summary, said above their findings.
@@ -69,7 +69,7 @@ def _row(finding: Finding) -> FindingRow:
         line=MISSING if finding.line is None else str(finding.line),
         column=MISSING if finding.column is None else finding.column,
         value=MISSING if finding.value is None else finding.value,
-        count=str(finding.count),
+        count=count(finding.count),
         message=finding.message,
     )
 
