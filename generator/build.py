@@ -8,9 +8,10 @@ import datetime as dt
 import os
 import sys
 import time
+from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 from pathlib import Path
-from typing import Callable, TextIO
+from typing import TextIO
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network

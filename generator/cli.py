@@ -6,8 +6,8 @@ import argparse
 import difflib
 import sys
 import traceback
+from collections.abc import Sequence
 from pathlib import Path
-from typing import Sequence
 
 from . import __version__
 from .errors import DataError, Finding, NetfolioError, UsageError

@@ -8,7 +8,7 @@ import re
 import sys
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Literal, Union
+from typing import Any, Literal
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -70,7 +70,7 @@ class MatrixSource:
     kind: Literal["matrix"] = "matrix"
 
 
-NetworkSource = Union[EdgeListSource, MatrixSource]
+NetworkSource = EdgeListSource | MatrixSource
 
 # The keys a [[network]] table may hold (the study.toml contract).
 NETWORK_KEYS = (
@@ -221,7 +221,7 @@ class _Table:
         return value
 
     def choice(self, name: str, allowed: tuple[str, ...], default: str) -> str:
-        value = self.get(name, str, default)
+        value: str = self.get(name, str, default)
         if value not in allowed:
             close = difflib.get_close_matches(value, allowed, n=1, cutoff=0.5)
             hint = f"; did you mean '{close[0]}'?" if close else ""
@@ -230,7 +230,7 @@ class _Table:
         return value
 
     def positive_int(self, name: str, default: int, *, minimum: int = 1) -> int:
-        value = self.get(name, int, default)
+        value: int = self.get(name, int, default)
         if value < minimum:
             raise ConfigError(f"must be at least {minimum}, got {value}", key=self._key(name))
         return value
@@ -360,7 +360,8 @@ def load_study(project: Path | str) -> StudyConfig:
     root = Path(project).resolve()
     path = root / STUDY_FILE
     if not path.is_file():
-        raise ConfigError(f"no {STUDY_FILE} in {root}; a study folder needs one (see the README's study.toml reference)")
+        raise ConfigError(f"no {STUDY_FILE} in {root}; a study folder needs one (see the README's "
+                          "study.toml reference)")
     try:
         raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
     except UnicodeDecodeError as exc:

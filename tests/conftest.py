@@ -5,8 +5,9 @@ from __future__ import annotations
 
 import json
 import random
+from collections.abc import Iterable, Sequence
 from pathlib import Path
-from typing import Any, Iterable, Sequence
+from typing import Any
 
 import networkx as nx
 import pytest

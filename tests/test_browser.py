@@ -8,16 +8,20 @@ is skipped.
 
 from __future__ import annotations
 
+import os
 import re
 import shutil
+from collections.abc import Iterator
 from pathlib import Path
-from typing import Iterator
 
 import pytest
 
 from generator.build import build_study
 
 CHROMIUM = Path("/usr/bin/chromium")
+# CI installs the browser, so there a missing one is a failure, not a silent skip.
+if not CHROMIUM.exists() and os.environ.get("CI"):
+    raise RuntimeError("CI needs Chromium at /usr/bin/chromium for the browser tests")
 if not CHROMIUM.exists():
     pytest.skip("needs Chromium at /usr/bin/chromium (apt-get install chromium)",
                 allow_module_level=True)

@@ -27,7 +27,8 @@ def copy_example(dest: Path) -> Path:
 
 
 def site_files(root: Path) -> dict[str, bytes]:
-    return {p.relative_to(root).as_posix(): p.read_bytes() for p in sorted(root.rglob("*")) if p.is_file()}
+    return {p.relative_to(root).as_posix(): p.read_bytes()
+            for p in sorted(root.rglob("*")) if p.is_file()}
 
 
 @pytest.fixture(scope="module")
@@ -144,7 +145,8 @@ def test_a_label_with_markup_is_escaped_on_every_page(tmp_path: Path) -> None:
     assert seen_escaped  # the label is shown, escaped, somewhere
 
 
-def test_cli_build_prints_a_progress_line_per_stage(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+def test_cli_build_prints_a_progress_line_per_stage(tmp_path: Path,
+                                                    capsys: pytest.CaptureFixture) -> None:
     study = copy_example(tmp_path / "study")
     assert main(["build", str(study)]) == 0
     err = capsys.readouterr().err

@@ -53,7 +53,8 @@ BAD_EDGES = [
     ("source,target,w\na,b,-1\n", ["data/edges.csv", "line 2", "'-1'", "negative"]),
     ("source,target,w\na,b,inf\n", ["data/edges.csv", "line 2", "'inf'", "infinite"]),
     ("source,target,w\na,b,2\nc,d,0\n", ["data/edges.csv", "line 3", "'0'", "weight is 0"]),
-    ("source,target,weight\na,b,2\n", ["data/edges.csv", "line 1", "'w'", "'source', 'target', 'weight'"]),
+    ("source,target,weight\na,b,2\n",
+     ["data/edges.csv", "line 1", "'w'", "'source', 'target', 'weight'"]),
     ("", ["data/edges.csv", "empty"]),
     ("source,target,w\n", ["data/edges.csv", "no data rows"]),
 ]
@@ -72,12 +73,14 @@ def test_bad_edge_file_exits_1_with_file_line_value_and_leaves_site_untouched(
     assert snapshot(built / "output") == before
 
 
-def test_duplicate_node_id_is_an_error_naming_both_lines(built: Path, capsys: pytest.CaptureFixture) -> None:
+def test_duplicate_node_id_is_an_error_naming_both_lines(built: Path,
+                                                         capsys: pytest.CaptureFixture) -> None:
     before = snapshot(built / "output")
     (built / "data" / "nodes.csv").write_text(NODES + "b,Bo Twin,red\n", encoding="utf-8")
     assert main(["build", str(built)]) == 1
     err = capsys.readouterr().err
-    assert "data/nodes.csv, line 6, column 'id': node id is repeated (first on line 3) (value: 'b')" in err
+    assert ("data/nodes.csv, line 6, column 'id': node id is repeated (first on line 3) "
+            "(value: 'b')") in err
     assert snapshot(built / "output") == before
 
 
@@ -89,7 +92,8 @@ def test_file_in_another_encoding_gets_a_clear_error(built: Path, capsys: pytest
 
 
 def test_config_error_names_the_dotted_key(built: Path, capsys: pytest.CaptureFixture) -> None:
-    (built / "study.toml").write_text(STUDY.replace('weight = "w"', 'weight = "w"\nwieght_means = "strength"'))
+    (built / "study.toml").write_text(STUDY.replace('weight = "w"',
+                                                    'weight = "w"\nwieght_means = "strength"'))
     assert main(["build", str(built)]) == 1
     err = capsys.readouterr().err
     assert "network[1].wieght_means" in err and "did you mean 'weight_means'" in err

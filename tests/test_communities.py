@@ -10,10 +10,10 @@ import warnings
 import igraph as ig
 import networkx as nx
 import pytest
+from conftest import analyse, analyse_graph, edge_study, load_network, undirected_version_nx
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from conftest import analyse, analyse_graph, edge_study, load_network, undirected_version_nx
 from generator.analyse.communities import find_communities, run_seeds
 
 EXACT = dict(rel=1e-9, abs=1e-12)

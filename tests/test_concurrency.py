@@ -15,8 +15,8 @@ import time
 from pathlib import Path
 
 import pytest
-
 from conftest import csv_text, edge_study
+
 from generator.build import build_study
 from generator.cli import main
 from generator.errors import DataError

@@ -7,8 +7,8 @@ import os
 from pathlib import Path
 
 import pytest
-
 from conftest import study_toml, write_study
+
 from generator.config import (
     CommunitiesConfig,
     EdgeListSource,

@@ -23,8 +23,13 @@ from generator.config import CommunitiesConfig, EdgeListSource, MeasuresConfig, 
 from generator.draw import Figure, FigureSettings, draw_network
 from generator.draw.community_sizes import draw_communities
 from generator.draw.network_map import draw_map, label_gid
-from generator.draw.node_encoding import (colour_groups, colour_nodes, size_measure, size_nodes,
-                                          top_nodes)
+from generator.draw.node_encoding import (
+    colour_groups,
+    colour_nodes,
+    size_measure,
+    size_nodes,
+    top_nodes,
+)
 from generator.draw.style import BAR_COLOUR, MISSING_GREY, OKABE_ITO, OTHER_GREY
 from generator.draw.tie_geometry import arrow_shapes, tie_widths
 from generator.ingest import CleanNetwork, DataChecks

@@ -10,9 +10,6 @@ import textwrap
 
 import pandas as pd
 import pytest
-from hypothesis import HealthCheck, given, settings
-from hypothesis import strategies as st
-
 from conftest import (
     analyse,
     csv_text,
@@ -22,6 +19,9 @@ from conftest import (
     load_network,
     matrix_study,
 )
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
 from generator.errors import DataError, Finding
 
 EDGES = "data/edges.csv"

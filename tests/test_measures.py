@@ -7,7 +7,6 @@ import math
 
 import networkx as nx
 import pytest
-
 from conftest import (
     CROSS_CHECK_CASES,
     analyse,

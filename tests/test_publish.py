@@ -14,8 +14,8 @@ import time
 from pathlib import Path
 
 import pytest
-
 from conftest import analyse, edge_study, load_network
+
 from generator.errors import LockError, OutputError
 from generator.publish import MARKER, datapackage_json, network_files, write_site
 from generator.publish import lock as lock_module

@@ -4,6 +4,7 @@ reference data in generator/vocabulary/references.py): exactly those of the meth
 from __future__ import annotations
 
 from conftest import analyse, edge_study, load_network
+
 from generator.render.describe import references_of
 
 

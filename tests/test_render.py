@@ -13,17 +13,24 @@ import pytest
 import generator.render as render
 from generator.analyse import Statistic, analyse_network
 from generator.analyse.communities import CommunityResult
-from generator.config import (CommunitiesConfig, EdgeListSource, MatrixSource, MeasuresConfig,
-                              NetworkConfig, SiteConfig, StudyConfig)
+from generator.config import (
+    CommunitiesConfig,
+    EdgeListSource,
+    MatrixSource,
+    MeasuresConfig,
+    NetworkConfig,
+    SiteConfig,
+    StudyConfig,
+)
 from generator.draw.figure import Figure
 from generator.errors import ConfigError, DataError
 from generator.ingest import read_network
 from generator.render import CAUTIONS, NetworkPageInput, render_site
 from generator.render.describe import references_of, stability_reading
-from generator.vocabulary import number, value_text
 from generator.render.network_page import statistic_rows, top_tables
 from generator.render.notes import render_markdown
 from generator.render.theme import packaged_themes
+from generator.vocabulary import number, value_text
 
 EVIL = "<script>alert(1)</script>"
 BUILD = {"netfolio": "0.0-test", "built": ""}
@@ -465,7 +472,8 @@ def test_an_external_image_shows_its_alt_text_and_is_reported_with_its_line(mark
 
 
 def test_each_external_image_is_reported_on_its_own_line():
-    text = "![a](https://h.example/1.png)\n\ntext\n\n![b](https://h.example/1.png) ![](//h.example/2.png)\n"
+    text = ("![a](https://h.example/1.png)\n\ntext\n\n"
+            "![b](https://h.example/1.png) ![](//h.example/2.png)\n")
     note = render_markdown(text, file="notes/pics.md")
     assert [(f.line, f.value) for f in note.findings] == [
         (1, "https://h.example/1.png"), (5, "https://h.example/1.png"), (5, "//h.example/2.png")]
@@ -501,7 +509,8 @@ def test_checks_page_lists_the_findings_of_notes_and_summary_once(tmp_path):
         ("notes/index.md", "3", "https://pics.example.org/logo.png")]
     assert all("external image not loaded" in message for message, *_ in rows)
     for path in ("index.html", "notes/index.html", "notes/field.html"):
-        assert "example.org" not in "".join(a.get("src") or "" for a in _Page(site[path].decode()).all("img"))
+        sources = "".join(a.get("src") or "" for a in _Page(site[path].decode()).all("img"))
+        assert "example.org" not in sources
 
 
 def test_checks_page_says_when_the_notes_needed_nothing(built):

@@ -7,7 +7,6 @@ import itertools
 
 import networkx as nx
 import pytest
-
 from conftest import (
     CROSS_CHECK_CASES,
     analyse,
@@ -16,6 +15,7 @@ from conftest import (
     load_network,
     undirected_version_nx,
 )
+
 from generator.analyse import Statistic
 
 EXACT = dict(rel=1e-9, abs=1e-12)

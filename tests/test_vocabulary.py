@@ -8,8 +8,8 @@ import math
 from pathlib import Path
 
 import pytest
-
 from conftest import analyse, directed_weighted_graph, graph_study, karate_graph, load_network
+
 from generator.vocabulary import (
     MEASURE_NAMES,
     MEASURES,

@@ -136,7 +136,8 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
         factor = np.divide(n - 1, others, out=np.zeros(n), where=others > 0)
         reach, total, inverse = reach * factor, total * factor, inverse * factor
     with np.errstate(divide="ignore", invalid="ignore"):
-        closeness = np.where(total > 0, (reach / (n - 1)) * (reach / total), 0.0) if n > 1 else np.zeros(n)
+        closeness = (np.where(total > 0, (reach / (n - 1)) * (reach / total), 0.0) if n > 1
+                     else np.zeros(n))
     columns["closeness"] = closeness.tolist()
     columns["harmonic"] = (inverse / (n - 1)).tolist() if n > 1 else [0.0] * n
 

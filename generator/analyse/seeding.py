@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import random
+from collections.abc import Iterator
 from contextlib import contextmanager
-from typing import Iterator
 
 import igraph as ig
 

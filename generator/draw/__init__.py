@@ -10,14 +10,14 @@ from ..analyse import NetworkAnalysis
 from ..vocabulary import HISTOGRAM_MEASURES
 from .community_sizes import draw_communities
 from .distributions import draw_centrality, draw_degree
-from .figure import Figure, FigureSettings
+from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
 from .network_map import draw_map
 from .node_encoding import colour_nodes
 
 __all__ = ["Figure", "FigureSettings", "draw_network"]
 
 
-def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()
+def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS
                  ) -> list[Figure]:
     """Every figure of one network, in page order: ``map``, ``degree``, one histogram per
     centrality measure the analysis holds (betweenness, closeness, harmonic, eigenvector,

@@ -5,10 +5,10 @@ from __future__ import annotations
 from matplotlib.ticker import MaxNLocator
 
 from ..analyse import NetworkAnalysis
+from ..vocabulary import count_of, list_in_words, number
 from .figure import Figure
 from .node_encoding import NodeColours
 from .style import BAR_COLOUR, OTHER_GREY, drawing_style, figure_bytes, new_chart, quiet_axes
-from ..vocabulary import count_of, list_in_words, number
 
 __all__ = ["MAX_BARS", "draw_communities"]
 

@@ -9,10 +9,10 @@ from matplotlib.axes import Axes
 from matplotlib.ticker import MaxNLocator
 
 from ..analyse import NetworkAnalysis
-from ..vocabulary import PATH_MEASURES, measure as measure_entry
+from ..vocabulary import PATH_MEASURES, count_of, node_name, number
+from ..vocabulary import measure as measure_entry
 from .figure import Figure
 from .style import BAR_COLOUR, INK, drawing_style, figure_bytes, new_chart, quiet_axes
-from ..vocabulary import count_of, node_name, number
 
 __all__ = ["draw_centrality", "draw_degree"]
 
@@ -82,7 +82,8 @@ def draw_centrality(analysis: NetworkAnalysis, measure: str) -> Figure:
         span = (low, high if high > low else low + 1.0)
         counts, _, _ = ax.hist(finite, bins=_bins(n), range=span, color=BAR_COLOUR,
                                edgecolor="white", linewidth=0.6)
-        ax.set_ylim(0, max(float(counts.max()), 1.0) * 1.15)  # headroom for the key
+        tallest = float(np.max(counts)) if len(counts) else 0.0
+        ax.set_ylim(0, max(tallest, 1.0) * 1.15)  # headroom for the key
         if finite.size:
             ax.axvline(median, color=INK, linestyle=(0, (4, 3)), linewidth=1.0,
                        label=f"median {number(median)}")
@@ -114,8 +115,8 @@ def _centrality_alt(analysis: NetworkAnalysis, measure: str, values: np.ndarray)
 
 
 def _centrality_caption(analysis: NetworkAnalysis, measure: str) -> str:
-    text = (measure_entry(measure).meaning + " Each bar counts the nodes in its range; the dashed line marks "
-            "the median.")
+    text = (measure_entry(measure).meaning + " Each bar counts the nodes in its range; the dashed "
+            "line marks the median.")
     if analysis.directed and measure in ("closeness", "harmonic"):
         text += " In this directed network paths run along tie directions to the node."
     if analysis.weighted and measure in ("closeness", "harmonic"):

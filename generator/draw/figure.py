@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Figure", "FigureSettings"]
+__all__ = ["DEFAULT_SETTINGS", "Figure", "FigureSettings"]
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -30,3 +30,6 @@ class Figure:
     caption: str  # one or two sentences under the figure for a non-specialist
     svg: bytes
     png: bytes
+
+
+DEFAULT_SETTINGS = FigureSettings()  # colour by community, size by degree

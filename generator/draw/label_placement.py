@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Literal
 
 import numpy as np
 from matplotlib.axes import Axes
@@ -11,11 +12,14 @@ from matplotlib.backend_bases import RendererBase
 from matplotlib.text import Annotation
 from matplotlib.transforms import Bbox
 
+HorizontalAlignment = Literal["left", "center", "right"]
+VerticalAlignment = Literal["bottom", "baseline", "center", "center_baseline", "top"]
+
 __all__ = ["NodeDisc", "place_labels"]
 
 # Offsets tried in order: above, below, right, left, then the four corners. (dx, dy) are unit
 # directions; ha/va anchor the text on the side facing the node.
-_CANDIDATES = (
+_CANDIDATES: tuple[tuple[int, int, HorizontalAlignment, VerticalAlignment], ...] = (
     (0, 1, "center", "bottom"), (0, -1, "center", "top"), (1, 0, "left", "center"),
     (-1, 0, "right", "center"), (1, 1, "left", "bottom"), (-1, 1, "right", "bottom"),
     (1, -1, "left", "top"), (-1, -1, "right", "top"),
@@ -71,8 +75,8 @@ def place_labels(ax: Axes, renderer: RendererBase, labels: list[Annotation],
         placed.append(_try(text, renderer, _offset(dx, dy, radii_points[vertex]), ha, va).padded(2))
 
 
-def _try(text: Annotation, renderer: RendererBase, offset: tuple[float, float], ha: str,
-         va: str) -> Bbox:
+def _try(text: Annotation, renderer: RendererBase, offset: tuple[float, float],
+         ha: HorizontalAlignment, va: VerticalAlignment) -> Bbox:
     text.xyann = offset
     text.set_horizontalalignment(ha)
     text.set_verticalalignment(va)

@@ -5,24 +5,43 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 from matplotlib import colormaps, patheffects
 from matplotlib.axes import Axes
+from matplotlib.backend_bases import RendererBase
 from matplotlib.collections import LineCollection, PolyCollection
 from matplotlib.colorbar import Colorbar
 from matplotlib.colors import Normalize
 from matplotlib.lines import Line2D
 
 from ..analyse import NetworkAnalysis, tie_strengths
-from .figure import Figure, FigureSettings
-from .label_placement import NodeDisc, place_labels
-from .node_encoding import (LABELLED_NODES, NodeColours, NodeSizes, colour_nodes, size_nodes,
-                            top_nodes)
-from .style import (INK, MISSING_EDGE, MISSING_GREY, NODE_EDGE, PNG_DPI, QUIET_INK, TIE_GREY,
-                    drawing_style, figure_bytes, new_figure)
-from .tie_geometry import arrow_shapes, tie_widths
 from ..vocabulary import count_of, list_in_words, node_name, number
+from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
+from .label_placement import NodeDisc, place_labels
+from .node_encoding import (
+    LABELLED_NODES,
+    NodeColours,
+    NodeSizes,
+    colour_nodes,
+    size_nodes,
+    top_nodes,
+)
+from .style import (
+    INK,
+    MISSING_EDGE,
+    MISSING_GREY,
+    NODE_EDGE,
+    PNG_DPI,
+    QUIET_INK,
+    TIE_GREY,
+    agg_renderer,
+    drawing_style,
+    figure_bytes,
+    new_figure,
+)
+from .tie_geometry import arrow_shapes, tie_widths
 
 __all__ = ["draw_map", "label_gid"]
 
@@ -84,7 +103,8 @@ def _frame(xy: np.ndarray) -> _Frame:
 
 def _radii_points(sizes: NodeSizes) -> np.ndarray:
     # A scatter marker of area s points^2 is a circle of diameter sqrt(s) points.
-    return np.sqrt(np.array(sizes.areas, dtype=float)) / 2
+    radii: np.ndarray = np.sqrt(np.array(sizes.areas, dtype=float)) / 2
+    return radii
 
 
 def _tie_ends(analysis: NetworkAnalysis) -> tuple[tuple[tuple[int, int], ...], tuple[float, ...]]:
@@ -127,8 +147,8 @@ def _short(label: str) -> str:
     return label if len(label) <= _MAX_LABEL else label[:_MAX_LABEL - 1] + "…"
 
 
-def _draw_labels(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: NodeSizes,
-                 labelled: list[int]) -> None:
+def _draw_labels(ax: Axes, renderer: RendererBase, analysis: NetworkAnalysis, xy: np.ndarray,
+                 sizes: NodeSizes, labelled: list[int]) -> None:
     labels = analysis.labels
     halo = [patheffects.withStroke(linewidth=3.0, foreground="white")]
     texts = []
@@ -138,7 +158,6 @@ def _draw_labels(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: Nod
                            color=INK, zorder=4, path_effects=halo)
         text.set_gid(label_gid(vertex))
         texts.append(text)
-    renderer = ax.figure.canvas.get_renderer()
     pixels = ax.transData.transform(xy) if len(xy) else np.zeros((0, 2))
     radii = _radii_points(sizes)
     discs = [NodeDisc(float(x), float(y), float(r) * PNG_DPI / 72.0)
@@ -157,7 +176,7 @@ def _legend_text(colours: NodeColours) -> list[str]:
 
 def _colour_key(key_ax: Axes, colours: NodeColours) -> None:
     """The colour key at the top of the key column: a legend, or a colour bar for numbers."""
-    style = {"loc": "upper left", "borderaxespad": 0.0, "alignment": "left",
+    style: dict[str, Any] = {"loc": "upper left", "borderaxespad": 0.0, "alignment": "left",
              "handletextpad": 0.4, "labelspacing": 0.45}
     handles = [_dot(g.colour, MISSING_EDGE if g.missing else NODE_EDGE) for g in colours.groups]
     if colours.scale is None:
@@ -231,7 +250,7 @@ def _caption(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes) 
             "lengths and have no meaning of their own.")
 
 
-def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings(),
+def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS,
              colours: NodeColours | None = None) -> Figure:
     """The network map of ``analysis`` as a Figure named ``map``."""
     colours = colours or colour_nodes(analysis, settings)
@@ -248,7 +267,7 @@ def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = FigureSetting
         ax.set_axis_off()
         _draw_ties(ax, analysis, xy, sizes, frame)
         _draw_nodes(ax, xy, colours, sizes)
-        _draw_labels(ax, analysis, xy, sizes, labelled)
+        _draw_labels(ax, agg_renderer(fig), analysis, xy, sizes, labelled)
         fig.text(0.01, 1 - 0.12 / frame.height, title, ha="left", va="top", fontsize=10.5,
                  fontweight="bold")
         key_ax = fig.add_axes(frame.key_box)

@@ -12,7 +12,7 @@ from matplotlib.colors import Normalize, to_hex
 
 from ..analyse import NetworkAnalysis
 from ..vocabulary import COMMUNITY
-from .figure import FigureSettings
+from .figure import DEFAULT_SETTINGS, FigureSettings
 from .style import MISSING_GREY, OKABE_ITO, OTHER_GREY, SEQUENTIAL_COLORMAP
 
 __all__ = [
@@ -85,7 +85,7 @@ class NodeSizes:
     areas: tuple[float, ...]
 
     def area_for(self, value: float) -> float:
-        return _scale_areas(np.array([value]), np.array(self.values, dtype=float))[0]
+        return float(_scale_areas(np.array([value]), np.array(self.values, dtype=float))[0])
 
 
 def colour_measure(settings: FigureSettings) -> str:
@@ -103,7 +103,7 @@ def _is_missing(value: object) -> bool:
     return value is None or value is pd.NA or (isinstance(value, float) and math.isnan(value))
 
 
-def _value_order(value: object) -> tuple:
+def _value_order(value: object) -> tuple[int, float, str]:
     # Numbers (community 2 before community 10) before text, text case-insensitively.
     if isinstance(value, (int, float, np.integer, np.floating)):
         return (0, float(value), "")
@@ -134,7 +134,7 @@ def colour_groups(values: list[object]) -> tuple[list[str], list[ColourGroup]]:
     return colours, groups
 
 
-def colour_nodes(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()
+def colour_nodes(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS
                  ) -> NodeColours:
     """Colour every node by the communities or by a node attribute."""
     attribute = colour_measure(settings)
@@ -153,12 +153,19 @@ def colour_nodes(analysis: NetworkAnalysis, settings: FigureSettings = FigureSet
     return NodeColours(attribute, tuple(colours), tuple(groups), None, categories)
 
 
+def _as_number(value: object) -> float:
+    if isinstance(value, (int, float, np.integer, np.floating)):
+        return float(value)
+    raise TypeError(f"a numeric attribute holds {value!r}")
+
+
 def _numeric_colours(attribute: str, values: list[object]) -> NodeColours:
-    present = [float(v) for v in values if not _is_missing(v)]
+    numbers = [None if _is_missing(v) else _as_number(v) for v in values]
+    present = [v for v in numbers if v is not None]
     low, high = (min(present), max(present)) if present else (0.0, 1.0)
     norm = Normalize(vmin=low, vmax=high if high > low else low + 1.0)
     cmap = colormaps[SEQUENTIAL_COLORMAP]
-    colours = [MISSING_GREY if _is_missing(v) else to_hex(cmap(norm(float(v)))) for v in values]
+    colours = [MISSING_GREY if v is None else to_hex(cmap(norm(v))) for v in numbers]
     missing = len(values) - len(present)
     groups = (ColourGroup("no value", MISSING_GREY, missing, missing=True),) if missing else ()
     return NodeColours(attribute, tuple(colours), groups,
@@ -180,10 +187,11 @@ def _scale_areas(values: np.ndarray, reference: np.ndarray) -> np.ndarray:
         return np.full(values.shape, (smallest + largest) / 2)
     low, high = finite.min(), finite.max()
     share = np.clip((np.nan_to_num(values, nan=low) - low) / (high - low), 0.0, 1.0)
-    return smallest + share * (largest - smallest)
+    areas: np.ndarray = smallest + share * (largest - smallest)
+    return areas
 
 
-def size_nodes(analysis: NetworkAnalysis, settings: FigureSettings = FigureSettings()) -> NodeSizes:
+def size_nodes(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS) -> NodeSizes:
     measure = size_measure(analysis, settings)
     values = np.array(analysis.measures[measure], dtype=float)
     areas = _scale_areas(values, values)

@@ -4,12 +4,14 @@ from __future__ import annotations
 
 import io
 import textwrap
+from collections.abc import Iterator
 from contextlib import contextmanager
-from typing import Iterator
+from typing import Any, Literal
 
 import matplotlib
 import matplotlib.style
 from matplotlib.axes import Axes
+from matplotlib.backend_bases import RendererBase
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure as CanvasFigure
 
@@ -25,6 +27,7 @@ __all__ = [
     "QUIET_INK",
     "SEQUENTIAL_COLORMAP",
     "TIE_GREY",
+    "agg_renderer",
     "drawing_style",
     "figure_bytes",
     "new_chart",
@@ -59,7 +62,7 @@ SEQUENTIAL_COLORMAP = "viridis"
 # rcParams applied while a figure is built and saved. Fixing the hash salt makes the SVG ids
 # the same on every run; DejaVu Sans ships with matplotlib, so text metrics (and so every
 # coordinate) do not depend on the fonts of the machine.
-_RC = {
+_RC: dict[Any, Any] = {
     "svg.hashsalt": "netfolio",
     # Labels and titles come from the data: "$5 vs $10" is text, not mathematics.
     "text.parse_math": False,
@@ -108,14 +111,23 @@ def new_figure(width: float, height: float) -> CanvasFigure:
     return figure
 
 
+def agg_renderer(figure: CanvasFigure) -> RendererBase:
+    """The renderer of a figure drawn on its own Agg canvas (as every figure here is)."""
+    canvas = figure.canvas
+    if not isinstance(canvas, FigureCanvasAgg):
+        raise TypeError("figures are drawn on an Agg canvas")
+    # matplotlib's own annotations leave get_renderer untyped.
+    renderer: RendererBase = canvas.get_renderer()  # type: ignore[no-untyped-call]
+    return renderer
+
+
 def figure_bytes(figure: CanvasFigure, *, crop: bool = False) -> tuple[bytes, bytes]:
     """The figure as (SVG, PNG) bytes, with no date or software stamp, then release it.
 
     ``crop`` trims both files to one box around everything drawn (measured once for both
     formats); charts with a fixed layout skip it, as measuring costs nearly a full draw.
     """
-    box = (figure.get_tightbbox(figure.canvas.get_renderer()).padded(_PAD_INCHES) if crop
-           else None)
+    box = (figure.get_tightbbox(agg_renderer(figure)).padded(_PAD_INCHES) if crop else None)
     svg, png = io.BytesIO(), io.BytesIO()
     figure.savefig(svg, format="svg", bbox_inches=box, metadata={"Date": None, "Creator": None})
     figure.savefig(png, format="png", bbox_inches=box, dpi=PNG_DPI, metadata={"Software": None})
@@ -152,7 +164,7 @@ def new_chart(width: float, plot_height: float, *, title: str, left: float = 0.8
     return figure, axes
 
 
-def quiet_axes(ax: Axes, *, grid: str = "y") -> None:
+def quiet_axes(ax: Axes, *, grid: Literal["both", "x", "y"] = "y") -> None:
     """Left and bottom spines only, with faint grid lines across ``grid`` behind the data."""
     for side in ("top", "right"):
         ax.spines[side].set_visible(False)

@@ -26,7 +26,8 @@ def tie_widths(strengths: tuple[float, ...], *, weighted: bool) -> np.ndarray:
     if not weighted or m == 0 or values.max() == values.min():
         return np.full(m, base)
     share = (values - values.min()) / (values.max() - values.min())
-    return base * (1.0 + 2.0 * share)
+    widths: np.ndarray = base * (1.0 + 2.0 * share)
+    return widths
 
 
 def arrow_shapes(xy: np.ndarray, pairs: tuple[tuple[int, int], ...], radii: np.ndarray,

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import math
 import re
-from fractions import Fraction
 from dataclasses import dataclass, field
+from fractions import Fraction
 from pathlib import Path
 
 import pandas as pd
@@ -20,7 +20,10 @@ __all__ = ["CleanNetwork", "DataChecks", "natural_key", "read_network"]
 MAX_LINES_LISTED = 20  # a finding lists at most this many line numbers
 
 
-def natural_key(text: str) -> tuple:
+NaturalKey = tuple[tuple[tuple[int, int, str], ...], str]
+
+
+def natural_key(text: str) -> NaturalKey:
     """Sort "s2" before "s10": digits compare as numbers, the rest as text.
 
     The text itself breaks ties ("a1" and "a01"), so the order is total and the same in every
@@ -94,7 +97,8 @@ def _number(text: str, decimal: str = ".") -> float | None:
 
 def _lines(lines: list[int]) -> str:
     shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
-    return shown + (f" and {len(lines) - MAX_LINES_LISTED} more" if len(lines) > MAX_LINES_LISTED else "")
+    more = len(lines) - MAX_LINES_LISTED
+    return shown + (f" and {more} more" if more > 0 else "")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -135,10 +139,10 @@ _CANONICAL_NUMBER = r"-?(0|[1-9][0-9]*)(\.[0-9]+)?"
 
 def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
     """Empty cells become missing; a column whose filled cells are all numbers becomes numeric."""
-    typed = {}
+    typed: dict[str, pd.Series] = {}
     pattern = _CANONICAL_NUMBER if decimal == "." else _CANONICAL_NUMBER.replace("\\.", ",")
     for column in frame.columns:
-        text = frame[column].astype("string").str.strip().replace("", pd.NA)
+        text = frame[column].astype("string").str.strip().replace({"": pd.NA})
         filled = text.dropna()
         # "01234" is a code, not a number: only columns of plainly written numbers become numeric.
         canonical = filled.str.fullmatch(pattern).all() if len(filled) else False
@@ -149,7 +153,8 @@ def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
             typed[column] = numbers.astype("Int64") if all_whole else numbers.astype("Float64")
         else:
             typed[column] = text
-    return pd.DataFrame(typed, index=frame.index)
+    result: pd.DataFrame = pd.DataFrame(typed, index=frame.index)
+    return result
 
 
 # ---------------------------------------------------------------------------------------------
@@ -285,13 +290,9 @@ def _read_matrix(net: NetworkConfig, matrix: MatrixSource, name: str, checks: Da
     for row, line in zip(table.rows, table.lines):
         line_of[row[0]] = line
         for label, cell in zip(col_labels, row[1:]):
-            if cell == "":
-                value = 0.0
-            else:
-                value = _check_weight(cell, net, name, line, label, checks)
-                if value is None:
-                    continue
-            values[(row[0], label)] = value
+            checked = 0.0 if cell == "" else _check_weight(cell, net, name, line, label, checks)
+            if checked is not None:
+                values[(row[0], label)] = checked
     checks.raise_if_errors()
     if not net.directed:
         for row_label in row_labels:  # file order, so the first asymmetric cell is named
@@ -373,8 +374,8 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
                 weighted: bool, checks: DataChecks) -> pd.DataFrame:
     loops = [t for t in ties if t.source == t.target]
     if loops:
-        checks.add(Finding("fix", name, f"{count_of(len(loops), 'self-loop', 'self-loops')} removed (a tie from a "
-                           f"node to itself) on {'line' if len(loops) == 1 else 'lines'} "
+        checks.add(Finding("fix", name, f"{count_of(len(loops), 'self-loop')} removed (a tie "
+                           f"from a node to itself) on {'line' if len(loops) == 1 else 'lines'} "
                            f"{_lines([t.line for t in loops])}",
                            line=loops[0].line if len(loops) == 1 else None,
                            value=loops[0].source, count=len(loops)))
@@ -413,7 +414,8 @@ def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[
     })
     if weighted:
         edges["weight"] = merged["weight"].astype(float).to_numpy()
-    return edges
+    result: pd.DataFrame = edges
+    return result
 
 
 # Survey tools put extra header rows (the question text, an import code such as
@@ -515,13 +517,13 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     if len(unknown) == 1:
         ((node, line),) = unknown.items()
         checks.add(Finding("fix", data_name, f"node {node!r} appears in ties but not in the node "
-                           f"list {study.relative(net.nodes)}; added with no attributes",
+                           f"list {nodes_name}; added with no attributes",
                            line=line, value=node))
     elif unknown:
         first = list(unknown.items())[:MAX_LINES_LISTED]
         shown = ", ".join(f"{n!r} (line {line})" for n, line in first)
         checks.add(Finding("fix", data_name, f"{len(unknown)} nodes appear in ties but not in the "
-                           f"node list {study.relative(net.nodes)}; added with no attributes: "
+                           f"node list {nodes_name}; added with no attributes: "
                            f"{shown}", value=next(iter(unknown)), count=len(unknown)))
 
     all_ids = sorted(known | set(listed), key=natural_key)
@@ -543,7 +545,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     if label_column == net.node_id:
         labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
     elif label_column:
-        labels = node_frame[label_column].astype("string").str.strip().replace("", pd.NA)
+        labels = node_frame[label_column].astype("string").str.strip().replace({"": pd.NA})
     else:
         labels = pd.Series(pd.NA, index=attrs.index, dtype="string")
     labels = labels.fillna(pd.Series(attrs.index, index=attrs.index, dtype="string"))
@@ -553,8 +555,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     touched = set(edges["source"]) | set(edges["target"])
     isolates = [n for n in all_ids if n not in touched]
     if isolates:
-        checks.add(Finding("note", data_name, f"{count_of(len(isolates), 'isolate', 'isolates')} with no ties, kept in "
-                           f"the network: {', '.join(isolates[:MAX_LINES_LISTED])}",
+        checks.add(Finding("note", data_name, f"{count_of(len(isolates), 'isolate')} with no "
+                           f"ties, kept in the network: {', '.join(isolates[:MAX_LINES_LISTED])}",
                            count=len(isolates)))
     _check_display_settings(net, attribute_names, study)
     files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
@@ -569,7 +571,7 @@ def _rename_reserved_columns(frame: pd.DataFrame, label_column: str | None, name
                              checks: DataChecks) -> pd.DataFrame:
     """An attribute called e.g. "degree" would collide with the measure in nodes.csv; keep it
     under "degree_attribute" and say so."""
-    renames = {}
+    renames: dict[str, str] = {}
     for column in frame.columns:
         if column in RESERVED_COLUMNS and column != label_column:
             new = f"{column}_attribute"

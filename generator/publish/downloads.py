@@ -23,7 +23,8 @@ def node_table(analysis: NetworkAnalysis) -> pd.DataFrame:
     """id, label, node attributes, then the measures, one row per node in node order."""
     table = analysis.nodes.join(analysis.measures)
     table.insert(0, "id", table.index.astype(str))
-    return table.reset_index(drop=True)
+    ordered: pd.DataFrame = table.reset_index(drop=True)
+    return ordered
 
 
 def nodes_csv(analysis: NetworkAnalysis) -> bytes:
@@ -56,8 +57,9 @@ def graphml(analysis: NetworkAnalysis) -> bytes:
     graph.graph["title"] = analysis.title
     for row in node_table(analysis).to_dict("records"):
         node = row.pop("id")
-        graph.add_node(node, **{k: v for k, v in ((k, _plain_value(v)) for k, v in row.items())
-                                if v is not None})
+        data = {str(k): v for k, v in ((k, _plain_value(v)) for k, v in row.items())
+                if v is not None}
+        graph.add_node(node, **data)
     for row in analysis.edges.to_dict("records"):
         extra = {"weight": float(row["weight"])} if "weight" in row else {}
         graph.add_edge(row["source"], row["target"], **extra)
@@ -99,24 +101,30 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
         described = {"id": "Node id as written in the input.", "label": "Display label."}
         described |= {c: "Node attribute from the node list." for c in a.attributes}
         described |= {c: _measure_description(c, a) for c in a.measures.columns}
-        weight_text = (f"Tie weight as written, read as a {'strength' if a.weight_means == 'strength' else 'distance'};"
-                       " repeated ties combined as the methods page says.")
+        meaning = "strength" if a.weight_means == "strength" else "distance"
+        weight_text = (f"Tie weight as written, read as a {meaning}; repeated ties combined as "
+                       "the methods page says.")
         resources += [
-            {"name": f"{a.network_id}-nodes", "path": f"{a.network_id}/nodes.csv", "profile": "tabular-data-resource",
-             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
+            {"name": f"{a.network_id}-nodes", "path": f"{a.network_id}/nodes.csv",
+             "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
+             "encoding": "utf-8",
              "title": f"{a.title}: nodes and measures",
              "schema": {"fields": _fields(nodes, described), "primaryKey": ["id"]}},
-            {"name": f"{a.network_id}-edges", "path": f"{a.network_id}/edges.csv", "profile": "tabular-data-resource",
-             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
-             "title": f"{a.title}: cleaned ties" + (" (directed: source to target)" if a.directed else ""),
+            {"name": f"{a.network_id}-edges", "path": f"{a.network_id}/edges.csv",
+             "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
+             "encoding": "utf-8",
+             "title": f"{a.title}: cleaned ties" + (" (directed: source to target)"
+                                                   if a.directed else ""),
              "schema": {"fields": _fields(a.edges, {"source": "Node id.", "target": "Node id.",
                                                     "weight": weight_text})}},
             {"name": f"{a.network_id}-statistics", "path": f"{a.network_id}/statistics.csv",
              "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
              "encoding": "utf-8", "title": f"{a.title}: network statistics",
              "schema": {"fields": [
-                 {"name": "statistic", "type": "string", "description": "Statistic name; see methods.html."},
-                 {"name": "value", "type": "number", "description": "Value; empty where not defined."}]}},
+                 {"name": "statistic", "type": "string",
+                  "description": "Statistic name; see methods.html."},
+                 {"name": "value", "type": "number",
+                  "description": "Value; empty where not defined."}]}},
         ]
     descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
                   "resources": resources}

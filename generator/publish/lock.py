@@ -26,10 +26,10 @@ import secrets
 import socket
 import stat
 import time
+from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Callable, Iterator
 
 from ..errors import LockError
 
@@ -227,16 +227,17 @@ def _held_error(path: Path, owner: LockOwner | None, wait: float) -> LockError:
         return LockError(f"the lock file {path} names no owner (a build stopped as it began?); "
                          f"{waited}. If no build of this study is running, remove the lock file "
                          f"{path} and build again", path=path)
-    holder = dict(path=path, pid=owner.pid, host=owner.host, since=owner.since)
     since = owner.since_text()
     if owner.host == socket.gethostname():
         return LockError(
             f"another netfolio build of this study is running: process {owner.pid} on this "
             f"computer ({owner.host}), since {since}; {waited}. Build again when it has "
             f"finished. If process {owner.pid} is not a netfolio build (process ids are reused "
-            f"after a restart), remove the lock file {path}", **holder)
+            f"after a restart), remove the lock file {path}", path=path, pid=owner.pid,
+            host=owner.host, since=owner.since)
     return LockError(
         f"another netfolio build of this study holds its lock: process {owner.pid} on host "
         f"{owner.host}, since {since}; {waited}. netfolio cannot tell from here whether a build "
         f"on another computer is still running: if that build has ended, remove the lock file "
-        f"{path} and build again", **holder)
+        f"{path} and build again", path=path, pid=owner.pid, host=owner.host,
+        since=owner.since)

@@ -4,14 +4,13 @@ rendering the notes."""
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
 
 from ..errors import Finding
 from ..vocabulary import MISSING, count
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page
 
-__all__ = ["LEVEL_TITLES", "NOTES_RULES", "FindingGroup", "FindingRow", "NetworkChecks",
+__all__ = ["LEVEL_TITLES", "NOTES_RULES", "ChecksPage", "FindingGroup", "FindingRow", "NetworkChecks",
            "NotesChecks", "checks_context", "finding_groups"]
 
 # In the order shown. Errors stop a build, so a built site normally shows only fixes and notes.
@@ -93,17 +92,26 @@ def _rules(item: NetworkPageInput) -> tuple[str, ...]:
             "Lines count as in a text editor: the header is line 1.")
 
 
+@dataclass(frozen=True)
+class ChecksPage:
+    """Everything ``checks.html`` shows."""
+
+    page: PageFrame
+    networks: tuple[NetworkChecks, ...]
+    notes: NotesChecks | None
+
+
 def checks_context(frame: PageFrame, networks: list[NetworkPageInput], *,
-                   notes: tuple[Finding, ...] | None = None) -> dict[str, Any]:
+                   notes: tuple[Finding, ...] | None = None) -> ChecksPage:
     """``notes``: the findings of rendering the notes and summary (None: the study has none)."""
-    return {
-        "page": frame,
-        "networks": tuple(NetworkChecks(
+    return ChecksPage(
+        page=frame,
+        networks=tuple(NetworkChecks(
             id=item.id, title=item.title, anchor=f"network-{item.id}",
             page_href=frame.href(network_page(item.id)), rules=_rules(item),
             groups=finding_groups(item.analysis.findings),
         ) for item in networks),
-        "notes": None if notes is None else NotesChecks(
+        notes=None if notes is None else NotesChecks(
             title="Notes and summary", anchor="notes", rules=NOTES_RULES,
             groups=finding_groups(notes)),
-    }
+    )

@@ -5,9 +5,22 @@ from __future__ import annotations
 
 from ..analyse import CommunityResult, NetworkAnalysis
 from ..config import NetworkConfig
-from ..vocabulary import (LAYOUT_REFERENCES, MEASURE_NAMES, PALETTE_REFERENCES, REFERENCES,
-                          SAMPLING_REFERENCES, STABILITY_REFERENCES, WEIGHT_REFERENCES, Reference,
-                          community_method, is_missing, measure, number, share, statistic)
+from ..vocabulary import (
+    LAYOUT_REFERENCES,
+    MEASURE_NAMES,
+    PALETTE_REFERENCES,
+    REFERENCES,
+    SAMPLING_REFERENCES,
+    STABILITY_REFERENCES,
+    WEIGHT_REFERENCES,
+    Reference,
+    community_method,
+    is_missing,
+    measure,
+    number,
+    share,
+    statistic,
+)
 
 __all__ = [
     "a_network", "measure_title", "method_title", "network_kind", "references_of",

@@ -2,14 +2,22 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass
-from typing import Iterable
 from urllib.parse import quote
 
 from ..config import EdgeListSource
-from ..vocabulary import (LAYOUT_REFERENCES, SAMPLING_REFERENCES, STABILITY_REFERENCES,
-                          WEIGHT_REFERENCES, Reference, community_method, measure, number,
-                          statistic)
+from ..vocabulary import (
+    LAYOUT_REFERENCES,
+    SAMPLING_REFERENCES,
+    STABILITY_REFERENCES,
+    WEIGHT_REFERENCES,
+    Reference,
+    community_method,
+    measure,
+    number,
+    statistic,
+)
 from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
 from .inputs import NetworkPageInput
 from .network_page import omitted_measures, sampling_sentence
@@ -92,7 +100,8 @@ class _Citations:
         self.numbers = {key: i for i, key in enumerate(self.order, start=1)}
 
     def cite(self, keys: Iterable[str]) -> tuple[Citation, ...]:
-        known = sorted((k for k in dict.fromkeys(keys) if k in self.numbers), key=self.numbers.get)
+        known = sorted((k for k in dict.fromkeys(keys) if k in self.numbers),
+                       key=self.numbers.__getitem__)
         return tuple(Citation(self.numbers[k], f"#ref-{k}") for k in known)
 
 

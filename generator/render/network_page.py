@@ -10,11 +10,30 @@ from typing import Any
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
-from ..vocabulary import (COMMUNITY, MEASURE_NAMES, PATH_MEASURES, Reading, count, count_of,
-                          is_missing, left_out_sentence, number, omission_reason, reading, share,
-                          statistic_title, undefined_reason)
-from .describe import (a_network, measure_title, method_title, network_kind, stability_reading,
-                       weights_sentence)
+from ..vocabulary import (
+    COMMUNITY,
+    MEASURE_NAMES,
+    PATH_MEASURES,
+    Reading,
+    count,
+    count_of,
+    is_missing,
+    left_out_sentence,
+    number,
+    omission_reason,
+    reading,
+    share,
+    statistic_title,
+    undefined_reason,
+)
+from .describe import (
+    a_network,
+    measure_title,
+    method_title,
+    network_kind,
+    stability_reading,
+    weights_sentence,
+)
 from .figures import FigureView, figure_views
 from .inputs import NetworkPageInput
 from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page

@@ -6,8 +6,8 @@ from dataclasses import dataclass
 
 import pandas as pd
 
-from .describe import measure_title
 from ..vocabulary import DIGITS, number, sort_key, value_text
+from .describe import measure_title
 from .inputs import NetworkPageInput
 from .network_page import sampling_sentence
 from .site_map import DOWNLOADS, PageFrame, network_file, network_page
@@ -42,7 +42,8 @@ def _table(item: NetworkPageInput) -> pd.DataFrame:
     # By position, not name: an attribute may share a name with "label" or a measure.
     nodes = analysis.nodes.iloc[:, :1 + len(analysis.attributes)]
     measures = analysis.measures.reindex(nodes.index)
-    return pd.concat([nodes, measures], axis=1)
+    table: pd.DataFrame = pd.concat([nodes, measures], axis=1)
+    return table
 
 
 def node_columns(item: NetworkPageInput) -> tuple[Column, ...]:

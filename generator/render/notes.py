@@ -16,9 +16,10 @@ from __future__ import annotations
 import html
 import re
 import xml.etree.ElementTree as etree
+from collections.abc import Callable
 from dataclasses import dataclass
 from html.parser import HTMLParser
-from typing import Callable
+from typing import Any
 
 import markdown
 import nh3
@@ -196,7 +197,7 @@ class _RawImageSources(HTMLParser):
 
 
 class _NoteExtension(Extension):
-    def __init__(self, *, allow_html: bool, processor_args: dict):
+    def __init__(self, *, allow_html: bool, processor_args: dict[str, Any]):
         super().__init__()
         self.allow_html = allow_html
         self.processor_args = processor_args
@@ -217,7 +218,8 @@ class _NoteExtension(Extension):
 def _image_findings(text: str, file: str, dropped: list[tuple[str, str]]) -> tuple[Finding, ...]:
     """One finding per image not loaded, on the line where its address is written (best effort:
     the n-th image with an address is looked for after the (n-1)-th)."""
-    findings, searched_from = [], {}
+    findings: list[Finding] = []
+    searched_from: dict[str, int] = {}
     for written, read in dropped:
         start = searched_from.get(read, 0)
         index = text.find(written, start) if written else -1

@@ -6,8 +6,8 @@ from dataclasses import dataclass
 
 from markupsafe import Markup
 
-from .describe import network_kind
 from ..vocabulary import count, number
+from .describe import network_kind
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page, nodes_page
 

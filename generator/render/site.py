@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any, Callable
+
+from markupsafe import Markup
 
 from ..config import StudyConfig
 from ..errors import Finding
@@ -15,11 +17,30 @@ from .network_page import network_context
 from .nodes_page import nodes_context
 from .notes import RenderedNote, render_markdown
 from .overview import overview_context
-from .site_map import (CHECKS, DOWNLOADS, INDEX, METHODS, SiteMap, network_page, nodes_page,
-                       note_page, page_href)
+from .site_map import (
+    CHECKS,
+    DOWNLOADS,
+    INDEX,
+    METHODS,
+    PageFrame,
+    SiteMap,
+    network_page,
+    nodes_page,
+    note_page,
+    page_href,
+)
 from .theme import load_theme
 
-__all__ = ["RenderedNotes", "render_notes", "render_site"]
+__all__ = ["NotePage", "RenderedNotes", "render_notes", "render_site"]
+
+
+@dataclass(frozen=True)
+class NotePage:
+    """Everything ``note.html`` shows."""
+
+    page: PageFrame
+    body: Markup
+    has_title: bool  # the note opens with its own level-1 heading
 
 TABLE_SCRIPT = "static/table.js"
 
@@ -93,7 +114,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         files_as_written[item.id] = {"data": study.relative(item.config.data_file)}
         if item.config.nodes is not None:
             files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
-    pages: list[tuple[str, str, dict[str, Any]]] = []
+    pages: list[tuple[str, str, object]] = []
 
     summary_html = written.summary.html if written.summary is not None else None
     pages.append((INDEX, "index.html", overview_context(
@@ -120,8 +141,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)
-        pages.append((path, "note.html", {"page": site.frame(path, title), "body": note.html,
-                                          "has_title": note.title is not None}))
+        pages.append((path, "note.html", NotePage(page=site.frame(path, title), body=note.html,
+                                                  has_title=note.title is not None)))
 
     output = {path: theme.render(template, context).encode("utf-8")
               for path, template, context in pages}

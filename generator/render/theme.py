@@ -12,7 +12,7 @@ import difflib
 from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 import jinja2
 
@@ -76,7 +76,7 @@ class Theme:
                 raise ConfigError(f"template {exc.name or template}, line {exc.lineno}: "
                                   f"{exc.message}", key=_THEME_KEY) from None
 
-    def render(self, template: str, context: Any) -> str:
+    def render(self, template: str, context: object) -> str:
         """Render ``template`` with a page context (a dataclass whose fields the template reads,
         or a mapping); a broken template becomes a ConfigError naming file and line."""
         if dataclasses.is_dataclass(context) and not isinstance(context, type):

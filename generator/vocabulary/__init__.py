@@ -5,17 +5,55 @@ Analysis keeps names and numbers only; figures, pages and downloads take every w
 
 from __future__ import annotations
 
-from .formatting import (DIGITS, MISSING, count, count_of, exact_text, is_missing, list_in_words,
+from .formatting import (
+                         DIGITS,
+                         MISSING,
+                         count,
+                         count_of,
+                         exact_text,
+                         is_missing,
+                         list_in_words,
                          node_name,
-                         number, plural, share, signed, sort_key, value_text)
-from .measures import (COMMUNITY, HISTOGRAM_MEASURES, MEASURE_NAMES, MEASURES, PATH_MEASURES,
-                       SIZE_MEASURES, MeasureEntry, measure, omission_reason)
-from .methods import (COMMUNITY_METHODS, LAYOUT_REFERENCES, PALETTE_REFERENCES,
-                      SAMPLING_REFERENCES, STABILITY_REFERENCES, WEIGHT_REFERENCES,
-                      CommunityMethod, community_method)
+                         number,
+                         plural,
+                         share,
+                         signed,
+                         sort_key,
+                         value_text,
+)
+from .measures import (
+                         COMMUNITY,
+                         HISTOGRAM_MEASURES,
+                         MEASURE_NAMES,
+                         MEASURES,
+                         PATH_MEASURES,
+                         SIZE_MEASURES,
+                         MeasureEntry,
+                         measure,
+                         omission_reason,
+)
+from .methods import (
+                         COMMUNITY_METHODS,
+                         LAYOUT_REFERENCES,
+                         PALETTE_REFERENCES,
+                         SAMPLING_REFERENCES,
+                         STABILITY_REFERENCES,
+                         WEIGHT_REFERENCES,
+                         CommunityMethod,
+                         community_method,
+)
 from .references import REFERENCES, Reference
-from .statistics import (NEUTRAL_BELOW, STATISTICS, Reading, StatisticEntry, left_out_sentence,
-                         reading, statistic, statistic_title, undefined_reason)
+from .statistics import (
+                         NEUTRAL_BELOW,
+                         STATISTICS,
+                         Reading,
+                         StatisticEntry,
+                         left_out_sentence,
+                         reading,
+                         statistic,
+                         statistic_title,
+                         undefined_reason,
+)
 
 __all__ = [
     "COMMUNITY",

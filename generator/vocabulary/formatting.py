@@ -4,7 +4,8 @@ figure and message. Full precision lives in the CSV downloads (``exact_text``)."
 from __future__ import annotations
 
 import math
-from typing import Any, Sequence
+from collections.abc import Sequence
+from typing import Any
 
 import numpy as np
 import pandas as pd

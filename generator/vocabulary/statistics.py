@@ -7,8 +7,8 @@ against chance backs it."""
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Callable
 
 from .formatting import count_of, number, share
 
@@ -105,7 +105,8 @@ def _strength_word(r: float) -> str:
 def _degree_assortativity(r: Reading) -> str:
     shown = number(r.value)
     if abs(r.value) < NEUTRAL_BELOW:
-        return f"Ties show no clear tendency to join nodes of similar or of different degree (r = {shown})."
+        return ("Ties show no clear tendency to join nodes of similar or of different degree "
+                f"(r = {shown}).")
     if r.value > 0:
         return (f"Ties lean {_strength_word(r.value)} towards joining nodes of similar degree "
                 f"(r = {shown}); this is not tested against chance.")
