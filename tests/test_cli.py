@@ -237,3 +237,20 @@ def test_check_prints_an_external_image_in_a_note_with_its_line(built: Path, cap
     out = capsys.readouterr().out
     assert "notes/pics.md, line 3: external image not loaded" in out
     assert "'https://maps.example.org/m.png'" in out
+
+
+@pytest.mark.parametrize("change, key", [
+    (('edges = "data/edges.csv"', 'edges = ""'), "network[1].edges"),
+    (('nodes = "data/nodes.csv"\n', ''), "network[1].label"),
+    (('nodes = "data/nodes.csv"', 'nodes = ""'), "network[1].nodes"),
+    (('nodes = "data/nodes.csv"', 'nodes = "data"'), "network[1].nodes"),
+])
+@pytest.mark.parametrize("verb", ["build", "check"])
+def test_empty_paths_a_label_without_nodes_and_a_folder_are_clear_errors(
+        built: Path, capsys: pytest.CaptureFixture, change, key, verb) -> None:
+    site = snapshot(built / "output")
+    (built / "study.toml").write_text(STUDY.replace(*change), encoding="utf-8")
+    assert main([verb, str(built)]) == 1
+    err = capsys.readouterr().err
+    assert f"[{key}]" in err and "Traceback" not in err
+    assert snapshot(built / "output") == site

@@ -171,7 +171,7 @@ def test_study_without_networks_is_refused(tmp_path):
     assert config_error(tmp_path).key == "network"
 
 
-def test_missing_study_file_points_to_init(tmp_path):
+def test_missing_study_file_points_to_the_study_toml_reference(tmp_path):
     error = config_error(tmp_path)
     assert "no study.toml" in str(error) and "study.toml reference" in str(error)
 

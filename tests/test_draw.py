@@ -391,3 +391,8 @@ def test_ties_between_overlapping_nodes_are_not_drawn():
 def test_tie_width_grows_mildly_with_strength():
     assert list(tie_widths((1.0, 2.0, 3.0), weighted=False)) == [0.6, 0.6, 0.6]
     assert list(tie_widths((1.0, 2.0, 3.0), weighted=True)) == pytest.approx([0.6, 1.2, 1.8])
+
+
+def test_community_caption_writes_the_method_as_every_page_does(undirected_figures):
+    # One capitalisation of method names: "Leiden", never "leiden".
+    assert undirected_figures[-1].caption.startswith("The Leiden method (best of")

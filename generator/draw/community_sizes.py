@@ -5,7 +5,7 @@ from __future__ import annotations
 from matplotlib.ticker import MaxNLocator
 
 from ..analyse import NetworkAnalysis
-from ..vocabulary import count_of, list_in_words, number
+from ..vocabulary import community_method, count_of, list_in_words, number
 from .figure import Figure
 from .node_encoding import NodeColours
 from .style import BAR_COLOUR, OTHER_GREY, drawing_style, figure_bytes, new_chart, quiet_axes
@@ -56,7 +56,8 @@ def draw_communities(analysis: NetworkAnalysis, colours: NodeColours | None = No
     if found.modularity is None:
         caption = "The network has no ties, so every node forms a community of its own."
     else:
-        caption = (f"The {found.method} method (best of {found.runs} runs) split the network into "
+        caption = (f"The {community_method(found.method).title} method (best of {found.runs} runs) "
+                   "split the network into "
                    f"{count_of(k, 'community', 'communities')}: groups of nodes with more ties "
                    f"among themselves than to the rest. Each bar is one community; its length is "
                    f"the number of nodes in it.")

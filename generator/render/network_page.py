@@ -215,7 +215,7 @@ def community_view(result: CommunityResult) -> CommunityView:
         single_note = ("1 node forms a community of its own (an isolate or a node only loosely "
                        "tied to any group).")
     elif single > 1:
-        single_note = (f"{single:,} nodes form communities of their own (isolates or nodes only "
+        single_note = (f"{count(single)} nodes form communities of their own (isolates or nodes only "
                        "loosely tied to any group).")
     rows = tuple(CommunityRow(rank, size, share(size / total))
                  for rank, size in enumerate(result.sizes, start=1) if size > 1)
