@@ -6,20 +6,22 @@ from __future__ import annotations
 
 import datetime as dt
 import os
+import shutil
 import sys
 import time
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TextIO
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
+from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import StudyConfig, load_study
 from .draw import FigureSettings, draw_network
-from .errors import ConfigError, DataError, Finding
+from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
-from .publish import check_output_folder, datapackage_json, network_files, write_site
+from .publish import MARKER, check_output_folder, datapackage_json, network_files, write_site
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
@@ -27,7 +29,7 @@ from .render.site import render_notes
 from .render.theme import load_theme
 from .vocabulary import count_of
 
-__all__ = ["BuildResult", "Progress", "build_study", "check_study"]
+__all__ = ["BuildResult", "Progress", "build_study", "check_study", "clean_study"]
 
 
 class Progress:
@@ -37,6 +39,10 @@ class Progress:
         self.stream = stream if stream is not None else sys.stderr
         self.quiet = quiet
         self._start = time.perf_counter()
+
+    def warn(self, message: str) -> None:
+        """A warning line; shown even when quiet."""
+        print(f"warning  {message}", file=self.stream, flush=True)
 
     def stage(self, name: str, message: str) -> None:
         if self.quiet:
@@ -54,16 +60,22 @@ class BuildResult:
     networks: list[NetworkAnalysis] = field(default_factory=list)
 
 
-def _read_all(study: StudyConfig, progress: Progress) -> list[CleanNetwork]:
-    """Read every network, collecting the errors of all of them before giving up."""
-    cleaned, errors = [], []
+def _read_all(study: StudyConfig, progress: Progress, *, skip: Iterable[str] = ()
+              ) -> dict[str, CleanNetwork]:
+    """Read every network (but those in ``skip``), collecting the errors of all of them before
+    giving up."""
+    cleaned: dict[str, CleanNetwork] = {}
+    errors: list[Finding] = []
+    skipped = set(skip)
     for net in study.networks:
+        if net.id in skipped:
+            continue
         try:
             clean = read_network(study, net)
         except DataError as exc:
             errors += exc.findings
             continue
-        cleaned.append(clean)
+        cleaned[net.id] = clean
         fixes = sum(1 for f in clean.checks.findings if f.level == "fix")
         progress.stage("ingest", f"{net.id}: {count_of(len(clean.nodes), 'node')}, "
                        f"{count_of(len(clean.edges), 'tie')}, {count_of(fixes, 'fix', 'fixes')}")
@@ -130,25 +142,28 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
     """Validate config and data without building; pass every finding to ``report``."""
     study = load_study(project)
     cleaned = _read_all(study, Progress(quiet=True))  # raises with the errors of every network
-    for clean in cleaned:
+    for clean in cleaned.values():
         for finding in clean.checks.findings:
             report(finding)
     notes, summary = _read_notes(study)
     for finding in render_notes(study, notes, summary).findings:  # a note too deep fails here
         report(finding)
     load_theme(study).check_templates()  # an unknown or broken theme fails here as in build
-    check_output_folder(study.output, _input_files(study, cleaned, notes))
+    check_output_folder(study.output, _input_files(study, notes))
     return study
 
 
-def _input_files(study: StudyConfig, cleaned: list[CleanNetwork], notes: dict[str, str]) -> list[Path]:
-    files = [p for c in cleaned for p in c.files] + [study.study_file]
-    return files + [study.root / "notes" / f"{stem}.md" for stem in notes]
+def _input_files(study: StudyConfig, notes: dict[str, str]) -> list[Path]:
+    files = [p for net in study.networks for p in (net.data_file, net.nodes) if p is not None]
+    return files + [study.study_file] + [study.root / "notes" / f"{stem}.md" for stem in notes]
 
 
 def build_study(project: Path | str, *, output: Path | None = None,
-                progress: Progress | None = None) -> BuildResult:
-    """Build the whole site; the previous site stays untouched unless every stage succeeds."""
+                progress: Progress | None = None, fresh: bool = False) -> BuildResult:
+    """Build the whole site; the previous site stays untouched unless every stage succeeds.
+
+    Results of unchanged networks come from ``<study>/.netfolio-cache/``; ``fresh`` ignores it
+    and writes it anew."""
     progress = progress or Progress(quiet=True)
     study = load_study(project)
     if output is not None:
@@ -158,7 +173,8 @@ def build_study(project: Path | str, *, output: Path | None = None,
         # A build killed between its two renames left the last site aside; put it back first,
         # so it is in place even if this build then stops on bad data.
         recover_interrupted_site(study.output)
-        return _build_holding_lock(study, progress)
+        cache = ResultCache(study.root / CACHE_DIR, warn=progress.warn, fresh=fresh)
+        return _build_holding_lock(study, progress, cache)
 
 
 def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
@@ -168,43 +184,88 @@ def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
     return waiting
 
 
-def _build_holding_lock(study: StudyConfig, progress: Progress) -> BuildResult:
-    """Every stage after config load; the caller holds the study's lock."""
+def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCache) -> BuildResult:
+    """Every stage after config load; the caller holds the study's lock.
+
+    A network whose inputs, settings and versions are unchanged is taken from the cache, neither
+    read, analysed nor drawn again; the site is the same bytes either way."""
     progress.stage("config", f"read {study.study_file.name}: {count_of(len(study.networks), 'network')}")
-    cleaned = _read_all(study, progress)
+    keys = {net.id: analysis_key(study, net) for net in study.networks}
+    cached = {net.id: cache.analysis(keys[net.id]) for net in study.networks}
+    cleaned = _read_all(study, progress, skip={i for i, a in cached.items() if a is not None})
     notes, summary = _read_notes(study)
 
     analyses = []
-    for clean in cleaned:
-        analysis = analyse_network(clean, communities=study.communities, measures=study.measures,
-                                   seed=study.seed)
+    for net in study.networks:
+        analysis = cached[net.id]
+        if analysis is not None:
+            progress.stage("analyse", f"{net.id}: cached")
+        else:
+            clean = cleaned[net.id]
+            analysis = analyse_network(clean, communities=study.communities,
+                                       measures=study.measures, seed=study.seed)
+            cache.store_analysis(keys[net.id], analysis)
+            progress.stage("analyse", f"{net.id}: "
+                           f"{count_of(len(analysis.measures.columns), 'measure')}, "
+                           f"{count_of(analysis.communities.count, 'community', 'communities')}")
         analyses.append(analysis)
-        progress.stage("analyse", f"{clean.id}: {count_of(len(analysis.measures.columns), 'measure')}, "
-                       f"{count_of(analysis.communities.count, 'community', 'communities')}")
 
     inputs = []
     files: dict[str, bytes] = {}
-    for clean, analysis in zip(cleaned, analyses):
-        figures = draw_network(analysis, FigureSettings(color_by=clean.config.color_by,
-                                                        size_by=clean.config.size_by))
-        inputs.append(NetworkPageInput(config=clean.config, analysis=analysis, figures=figures))
+    for net, analysis in zip(study.networks, analyses):
+        settings = FigureSettings(color_by=net.color_by, size_by=net.size_by)
+        figure_key = figures_key(keys[net.id], settings)
+        figures = cache.figures(figure_key)
+        if figures is not None:
+            progress.stage("draw", f"{net.id}: cached")
+        else:
+            figures = draw_network(analysis, settings)
+            cache.store_figures(figure_key, figures)
+            progress.stage("draw", f"{net.id}: {count_of(len(figures), 'figure')}")
+        inputs.append(NetworkPageInput(config=net, analysis=analysis, figures=figures))
         for figure in figures:
             base = f"networks/{analysis.network_id}/figures/{figure.name}"
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
-        progress.stage("draw", f"{analysis.network_id}: {count_of(len(figures), 'figure')}")
 
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=_build_info())
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
 
     files.update(pages)
-    for analysis in analyses:
-        files.update(network_files(analysis))
+    for net, analysis in zip(study.networks, analyses):
+        downloads = cache.files(keys[net.id])
+        if downloads is None:
+            downloads = network_files(analysis)
+            cache.store_files(keys[net.id], downloads)
+        files.update(downloads)
     files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
-    count = write_site(study.output, files, inputs=_input_files(study, cleaned, notes))
+    count = write_site(study.output, files, inputs=_input_files(study, notes))
+    cache.prune()
     size = sum(len(b) for b in files.values())
     progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
     return BuildResult(study=study, output=study.output, files=count, networks=analyses)
+
+
+def clean_study(project: Path | str) -> list[Path]:
+    """Remove the study's cache and its site, each only if netfolio's marker says netfolio made
+    it; returns what was removed. Holds the study's lock, so no build is writing meanwhile."""
+    study = load_study(project)
+    removed: list[Path] = []
+    with hold_study_lock(study.root):
+        folder = study.root / CACHE_DIR
+        if remove_cache(folder):
+            removed.append(folder)
+        elif folder.exists():
+            raise OutputError(f"{folder} was not made by netfolio (it has no {CACHE_TAG}); "
+                              "netfolio leaves it alone: remove it yourself")
+        recover_interrupted_site(study.output)  # a site caught mid-swap is removed as a whole
+        if study.output.exists():
+            if not (study.output / MARKER).is_file():
+                raise OutputError(f"the output folder {study.output} was not made by netfolio (no "
+                                  f"{MARKER} file); netfolio leaves it alone")
+            shutil.rmtree(study.output)
+            removed.append(study.output)
+    return removed
 
 
 def _with_output(study: StudyConfig, output: Path) -> StudyConfig:

@@ -14,7 +14,7 @@ from .errors import DataError, Finding, NetfolioError, UsageError
 
 __all__ = ["main"]
 
-VERBS = ("build", "check")
+VERBS = ("build", "check", "clean")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -31,9 +31,13 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
     build.add_argument("--out", type=Path, help="write the site here instead of [study] output")
     build.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
+    build.add_argument("--fresh", action="store_true",
+                       help="ignore the cache of earlier results and write it anew")
     check = verbs.add_parser("check", help="validate study.toml and the data; print every finding")
     check.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
     check.add_argument("--quiet", "-q", action="store_true", help="print errors only")
+    clean = verbs.add_parser("clean", help="remove the cache and the site netfolio made")
+    clean.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
     return parser
 
 
@@ -49,19 +53,27 @@ def _print_finding(finding: Finding) -> None:
     print(f"{finding.level:<7} {finding.format()}")
 
 
-def _run(argv: Sequence[str]) -> int:
-    from .build import Progress, build_study, check_study  # heavy imports only when needed
+def _build(args: argparse.Namespace) -> int:
+    from .build import Progress, build_study  # heavy imports only when needed
 
-    _suggest_verb(argv)
-    args = _parser().parse_args(argv)
-    if args.verb is None:
-        _parser().print_help(sys.stderr)
-        return 2
-    if args.verb == "build":
-        result = build_study(args.project, output=args.out, progress=Progress(quiet=args.quiet))
-        if not args.quiet:
-            print(f"site written to {result.output / 'index.html'}")
-        return 0
+    result = build_study(args.project, output=args.out, progress=Progress(quiet=args.quiet),
+                         fresh=args.fresh)
+    if not args.quiet:
+        print(f"site written to {result.output / 'index.html'}")
+    return 0
+
+
+def _clean(args: argparse.Namespace) -> int:
+    from .build import clean_study
+
+    for removed in clean_study(args.project):
+        print(f"removed {removed}")
+    return 0
+
+
+def _check(args: argparse.Namespace) -> int:
+    from .build import check_study
+
     findings: list[Finding] = []
     study = check_study(args.project, report=findings.append)
     if not args.quiet:
@@ -71,6 +83,18 @@ def _run(argv: Sequence[str]) -> int:
         print(f"ok: {nets} {'network' if nets == 1 else 'networks'} checked, {found} "
               f"{'finding' if found == 1 else 'findings'}, no errors")
     return 0
+
+
+_HANDLERS = {"build": _build, "check": _check, "clean": _clean}
+
+
+def _run(argv: Sequence[str]) -> int:
+    _suggest_verb(argv)
+    args = _parser().parse_args(argv)
+    if args.verb is None:
+        _parser().print_help(sys.stderr)
+        return 2
+    return _HANDLERS[args.verb](args)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

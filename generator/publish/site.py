@@ -15,12 +15,13 @@ import re
 import shutil
 import sys
 import tempfile
+import threading
 from pathlib import Path
 from typing import Any
 
 from ..errors import OutputError
 
-__all__ = ["MARKER", "check_output_folder", "manifest_json", "recover_interrupted_site",
+__all__ = ["MARKER", "SWAP_LOCK", "check_output_folder", "manifest_json", "recover_interrupted_site",
            "write_site"]
 
 MARKER = ".netfolio-site"
@@ -75,7 +76,8 @@ def write_site(output: Path, files: dict[str, bytes], *, inputs: list[Path]) -> 
             target.parent.mkdir(parents=True, exist_ok=True)
             target.write_bytes(data)
         os.chmod(staging, 0o755)
-        _swap_in(staging, output)
+        with SWAP_LOCK:
+            _swap_in(staging, output)
     except BaseException:
         try:
             _remove_tree(staging)
@@ -83,6 +85,11 @@ def write_site(output: Path, files: dict[str, bytes], *, inputs: list[Path]) -> 
             pass  # report the first failure, not this one; the next build removes the rest
         raise
     return len(every)
+
+
+# Held while the new site is swapped in. A preview server in the same process takes it while it
+# opens a file, so a reader gets the old site or the new one, never the moment between renames.
+SWAP_LOCK = threading.RLock()
 
 
 def recover_interrupted_site(output: Path) -> None:
