@@ -10,8 +10,8 @@ from dataclasses import replace
 from pathlib import Path
 
 import pytest
-
 from conftest import edge_study, write_study
+
 from generator.build import Progress, build_study, clean_study
 from generator.cache import (
     CACHE_DIR,
