@@ -5,6 +5,8 @@ This is the only module that knows every stage."""
 from __future__ import annotations
 
 import datetime as dt
+import hashlib
+import json
 import os
 import shutil
 import sys
@@ -17,7 +19,7 @@ from typing import TextIO
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
-from .config import StudyConfig, load_study
+from .config import NetworkConfig, StudyConfig, load_study
 from .draw import FigureSettings, draw_network
 from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
@@ -29,7 +31,7 @@ from .render.site import render_notes
 from .render.theme import load_theme
 from .vocabulary import count_of
 
-__all__ = ["BuildResult", "Progress", "build_study", "check_study", "clean_study"]
+__all__ = ["BuildResult", "Progress", "Rebuilder", "build_study", "check_study", "clean_study"]
 
 
 class Progress:
@@ -54,10 +56,33 @@ class Progress:
 
 @dataclass
 class BuildResult:
+    """What a build did: the files it wrote and the analyses of every network; a build that
+    found nothing changed (``up_to_date``) wrote nothing and holds no analyses."""
+
     study: StudyConfig
     output: Path
     files: int
     networks: list[NetworkAnalysis] = field(default_factory=list)
+    up_to_date: bool = False
+
+
+def _site_key(study: StudyConfig, keys: dict[str, str], notes: dict[str, str],
+              summary: str | None, build_info: dict[str, str]) -> str:
+    """Everything the site's bytes depend on beyond the networks' own keys: the figure settings,
+    study.toml, the notes, the theme and the build stamp."""
+    digest = hashlib.sha256()
+    parts: list[object] = [
+        sorted(keys.items()),
+        [(net.id, figures_key(keys[net.id], _figure_settings(net))) for net in study.networks],
+        hashlib.sha256(study.study_file.read_bytes()).hexdigest(),
+        sorted(notes.items()), summary, build_info, load_theme(study).digest(),
+    ]
+    digest.update(json.dumps(parts, sort_keys=True, default=str).encode("utf-8"))
+    return digest.hexdigest()
+
+
+def _figure_settings(net: NetworkConfig) -> FigureSettings:
+    return FigureSettings(color_by=net.color_by, size_by=net.size_by)
 
 
 def _read_all(study: StudyConfig, progress: Progress, *, skip: Iterable[str] = ()
@@ -164,17 +189,38 @@ def build_study(project: Path | str, *, output: Path | None = None,
 
     Results of unchanged networks come from ``<study>/.netfolio-cache/``; ``fresh`` ignores it
     and writes it anew."""
-    progress = progress or Progress(quiet=True)
-    study = load_study(project)
-    if output is not None:
-        study = _with_output(study, output)
-    # One build of a study at a time: two at once raced over the swap of the site folder.
-    with hold_study_lock(study.root, on_wait=_report_waiting(progress)):
-        # A build killed between its two renames left the last site aside; put it back first,
-        # so it is in place even if this build then stops on bad data.
-        recover_interrupted_site(study.output)
-        cache = ResultCache(study.root / CACHE_DIR, warn=progress.warn, fresh=fresh)
-        return _build_holding_lock(study, progress, cache)
+    return Rebuilder(project, output=output, progress=progress).build(fresh=fresh)
+
+
+class Rebuilder:
+    """Builds one study, again and again if asked (the preview does), keeping the results of
+    each build in memory so the next one redoes only what an edit changed."""
+
+    def __init__(self, project: Path | str, *, output: Path | None = None,
+                 progress: Progress | None = None):
+        self.project = project
+        self.output = output
+        self.progress = progress or Progress(quiet=True)
+        self._cache: ResultCache | None = None
+
+    def build(self, *, fresh: bool = False) -> BuildResult:
+        """One build; raises as ``build_study`` does, leaving the last site untouched."""
+        study = load_study(self.project)
+        if self.output is not None:
+            study = _with_output(study, self.output)
+        # One build of a study at a time: two at once raced over the swap of the site folder.
+        with hold_study_lock(study.root, on_wait=_report_waiting(self.progress)):
+            # A build killed between its two renames left the last site aside; put it back
+            # first, so it is in place even if this build then stops on bad data.
+            recover_interrupted_site(study.output)
+            return _build_holding_lock(study, self.progress, self._cache_for(study, fresh))
+
+    def _cache_for(self, study: StudyConfig, fresh: bool) -> ResultCache:
+        folder = study.root / CACHE_DIR
+        if self._cache is None or self._cache.folder != folder:
+            self._cache = ResultCache(folder, warn=self.progress.warn)
+        self._cache.begin_build(fresh=fresh)
+        return self._cache
 
 
 def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
@@ -191,9 +237,14 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     read, analysed nor drawn again; the site is the same bytes either way."""
     progress.stage("config", f"read {study.study_file.name}: {count_of(len(study.networks), 'network')}")
     keys = {net.id: analysis_key(study, net) for net in study.networks}
+    notes, summary = _read_notes(study)
+    build_info = _build_info()
+    site_key = _site_key(study, keys, notes, summary, build_info)
+    if cache.site_is_current(study.output, site_key):
+        progress.stage("publish", f"nothing changed: {study.output} is up to date")
+        return BuildResult(study=study, output=study.output, files=0, up_to_date=True)
     cached = {net.id: cache.analysis(keys[net.id]) for net in study.networks}
     cleaned = _read_all(study, progress, skip={i for i, a in cached.items() if a is not None})
-    notes, summary = _read_notes(study)
 
     analyses = []
     for net in study.networks:
@@ -213,7 +264,7 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     inputs = []
     files: dict[str, bytes] = {}
     for net, analysis in zip(study.networks, analyses):
-        settings = FigureSettings(color_by=net.color_by, size_by=net.size_by)
+        settings = _figure_settings(net)
         figure_key = figures_key(keys[net.id], settings)
         figures = cache.figures(figure_key)
         if figures is not None:
@@ -228,7 +279,7 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
 
-    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=_build_info())
+    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
 
     files.update(pages)
@@ -240,6 +291,7 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
         files.update(downloads)
     files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
     count = write_site(study.output, files, inputs=_input_files(study, notes))
+    cache.record_site(study.output, site_key)
     cache.prune()
     size = sum(len(b) for b in files.values())
     progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")

@@ -240,6 +240,16 @@ class ResultCache:
     def __post_init__(self) -> None:
         self._used: set[Path] = set()
         self._writable = True
+        # Results of earlier builds by this same object (the preview builds again and again in
+        # one process): taken from memory, not parsed from disk again.
+        self._memory: dict[Path, Any] = {}
+
+    def begin_build(self, *, fresh: bool = False) -> None:
+        """Start another build with this cache: forget which entries the last one used."""
+        self.fresh = fresh
+        self._used = set()
+        if fresh:
+            self._memory.clear()
 
     # -- reading --------------------------------------------------------------------------------
 
@@ -258,7 +268,12 @@ class ResultCache:
     def _load(self, kind: str, key: str, parse: Callable[[Any], T]) -> T | None:
         path = self._path(kind, key)
         self._used.add(path)
-        if self.fresh or not path.is_file():
+        if self.fresh:
+            return None
+        if path in self._memory:
+            remembered: T = self._memory[path]
+            return remembered
+        if not path.is_file():
             return None
         try:
             entry = json.loads(path.read_text(encoding="utf-8"))
@@ -268,7 +283,9 @@ class ResultCache:
             payload = entry["payload"]
             if hashlib.sha256(payload.encode("utf-8")).hexdigest() != entry["sha256"]:
                 raise ValueError("its checksum does not match: the file is damaged")
-            return parse(json.loads(payload))
+            result = parse(json.loads(payload))
+            self._memory[path] = result
+            return result
         except (OSError, ValueError, KeyError, TypeError, AttributeError) as exc:
             self.warn(f"discarded the cached {kind} {path.name} ({exc}); computing it again")
             self._discard(path)
@@ -277,13 +294,63 @@ class ResultCache:
     # -- writing --------------------------------------------------------------------------------
 
     def store_analysis(self, key: str, analysis: NetworkAnalysis) -> None:
+        self._memory[self._path("analysis", key)] = analysis
         self._store("analysis", key, analysis_to_json(analysis))
 
     def store_figures(self, key: str, figures: list[Figure]) -> None:
+        self._memory[self._path("figures", key)] = figures
         self._store("figures", key, _figures_to_json(figures))
 
     def store_files(self, key: str, files: dict[str, bytes]) -> None:
+        self._memory[self._path("files", key)] = files
         self._store("files", key, _files_to_json(files))
+
+    # -- the last site written ---------------------------------------------------------------
+
+    def _site_record(self, output: Path) -> Path:
+        name = hashlib.sha256(str(output).encode("utf-8")).hexdigest()
+        return self.folder / f"site-{name}.json"
+
+    def site_is_current(self, output: Path, key: str) -> bool:
+        """True when ``output`` holds, unchanged, the site this cache last wrote there for
+        ``key`` (every file listed in its manifest present with its checksum)."""
+        record = self._site_record(output)
+        self._used.add(record)
+        if self.fresh or not record.is_file():
+            return False
+        try:
+            entry = json.loads(record.read_text(encoding="utf-8"))
+            if (entry.get("format"), entry.get("version"), entry.get("key")) != (
+                    FORMAT, FORMAT_VERSION, key):
+                return False
+            manifest = (output / "manifest.json").read_bytes()
+            if hashlib.sha256(manifest).hexdigest() != entry["manifest"]:
+                return False
+            for item in json.loads(manifest)["files"]:
+                data = (output / item["path"]).read_bytes()
+                if len(data) != item["size"] or hashlib.sha256(data).hexdigest() != item["sha256"]:
+                    return False
+            return True
+        except (OSError, ValueError, KeyError, TypeError):
+            return False
+
+    def record_site(self, output: Path, key: str) -> None:
+        """Remember that ``output`` now holds the site for ``key``."""
+        record = self._site_record(output)
+        self._used.add(record)
+        if not self._writable:
+            return
+        try:
+            manifest = (output / "manifest.json").read_bytes()
+            self._ensure_folder()
+            entry = {"format": FORMAT, "version": FORMAT_VERSION, "key": key,
+                     "output": str(output), "manifest": hashlib.sha256(manifest).hexdigest()}
+            handle, temporary = tempfile.mkstemp(prefix=".entry-", dir=self.folder)
+            with os.fdopen(handle, "w", encoding="utf-8") as out:
+                json.dump(entry, out)
+            os.replace(temporary, record)
+        except OSError:
+            pass  # the next build simply builds again
 
     def _store(self, kind: str, key: str, payload: Any) -> None:
         if not self._writable:
@@ -321,10 +388,11 @@ class ResultCache:
         for path in _entries(self.folder):
             if path not in self._used:
                 self._discard(path)
+                self._memory.pop(path, None)
 
 
 def _entries(folder: Path) -> Iterable[Path]:
-    for kind in ("analysis", "figures", "files"):
+    for kind in ("analysis", "figures", "files", "site"):
         yield from sorted(folder.glob(f"{kind}-*.json"))
     yield from sorted(folder.glob(".entry-*"))  # writes a killed build left half done
 

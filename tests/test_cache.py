@@ -185,8 +185,39 @@ def test_fresh_ignores_the_cache_and_writes_it_anew(tmp_path):
     root = _study(tmp_path / "study")
     _build(root, tmp_path / "site")
     lines = _build(root, tmp_path / "site", fresh=True)
-    assert "cached" not in lines
-    assert "cached" in _build(root, tmp_path / "site")
+    assert "cached" not in lines and "up to date" not in lines
+    assert "cached" in _build(root, tmp_path / "other")
+
+
+def test_a_build_with_nothing_changed_writes_nothing(tmp_path):
+    root = _study(tmp_path / "study")
+    _build(root, tmp_path / "site")
+    before = _snapshot(tmp_path / "site")
+    stamp = (tmp_path / "site" / "index.html").stat().st_mtime_ns
+    lines = _build(root, tmp_path / "site")
+    assert "nothing changed" in lines and "analyse" not in lines
+    assert (tmp_path / "site" / "index.html").stat().st_mtime_ns == stamp
+    assert _snapshot(tmp_path / "site") == before
+
+
+@pytest.mark.parametrize("change", ["note", "site file", "theme"])
+def test_any_change_to_what_the_site_shows_builds_again(tmp_path, change):
+    root = _study(tmp_path / "study")
+    (root / "notes").mkdir()
+    (root / "notes" / "a.md").write_text("# A\n\nx\n")
+    _build(root, tmp_path / "site")
+    if change == "note":
+        (root / "notes" / "a.md").write_text("# A\n\ny\n")
+    elif change == "site file":  # a file of the site edited by hand is put right
+        (tmp_path / "site" / "index.html").write_text("edited")
+    else:
+        (root / "mytheme" / "static").mkdir(parents=True)
+        (root / "mytheme" / "static" / "extra.css").write_text("p { margin: 0; }")
+        toml = (root / "study.toml").read_text()
+        (root / "study.toml").write_text(toml + '\n[site]\ntheme = "mytheme"\n')
+    lines = _build(root, tmp_path / "site")
+    assert "nothing changed" not in lines and "publish  wrote" in lines
+    assert (tmp_path / "site" / "index.html").read_text() != "edited"
 
 
 # ---------------------------------------------------------------------------------------------
@@ -214,7 +245,7 @@ def test_a_damaged_or_foreign_entry_is_recomputed_with_one_warning(tmp_path, dam
     assert len(warnings) == 1 and entry.name in warnings[0]
     assert "analyse  net: cached" not in lines
     assert _snapshot(tmp_path / "fresh") == _snapshot(tmp_path / "again")
-    assert "analyse  net: cached" in _build(root, tmp_path / "again")  # written anew
+    assert "analyse  net: cached" in _build(root, tmp_path / "third")  # written anew
 
 
 def test_damaged_figures_are_redrawn_and_a_wrong_key_is_refused(tmp_path):

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import hashlib
 from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
@@ -66,6 +67,16 @@ class Theme:
     name: str
     environment: jinja2.Environment
     static: dict[str, bytes]  # relative posix path under static/ -> bytes
+
+    def digest(self) -> str:
+        """SHA-256 of every template source and static file: what a rebuild must compare."""
+        digest = hashlib.sha256()
+        for name in sorted(self.environment.list_templates()):
+            source, _, _ = self.environment.loader.get_source(self.environment, name)  # type: ignore[union-attr]
+            digest.update(f"{name}\0{source}\0".encode())
+        for name, data in sorted(self.static.items()):
+            digest.update(f"{name}\0".encode() + data + b"\0")
+        return digest.hexdigest()
 
     def check_templates(self) -> None:
         """Compile every template, so ``check`` finds a syntax error before a build does."""
