@@ -243,35 +243,56 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     if cache.site_is_current(study.output, site_key):
         progress.stage("publish", f"nothing changed: {study.output} is up to date")
         return BuildResult(study=study, output=study.output, files=0, up_to_date=True)
+    analyses = study_analyses(study, keys, progress, cache)
+    files = site_files(study, analyses, keys, notes=notes, summary=summary,
+                       build_info=build_info, progress=progress, cache=cache)
+    count = write_site(study.output, files, inputs=_input_files(study, notes))
+    cache.record_site(study.output, site_key)
+    cache.prune()
+    size = sum(len(b) for b in files.values())
+    progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
+    return BuildResult(study=study, output=study.output, files=count, networks=analyses)
+
+
+def study_analyses(study: StudyConfig, keys: dict[str, str], progress: Progress,
+                   cache: ResultCache) -> list[NetworkAnalysis]:
+    """The analysis of every network, in study order: from the cache where the network's key
+    (``keys``, from ``analysis_key``) is there, else read, checked and computed (and stored)."""
     cached = {net.id: cache.analysis(keys[net.id]) for net in study.networks}
     cleaned = _read_all(study, progress, skip={i for i, a in cached.items() if a is not None})
-
     analyses = []
     for net in study.networks:
         analysis = cached[net.id]
         if analysis is not None:
             progress.stage("analyse", f"{net.id}: cached")
         else:
-            clean = cleaned[net.id]
-            analysis = analyse_network(clean, communities=study.communities,
+            analysis = analyse_network(cleaned[net.id], communities=study.communities,
                                        measures=study.measures, seed=study.seed)
             cache.store_analysis(keys[net.id], analysis)
             progress.stage("analyse", f"{net.id}: "
                            f"{count_of(len(analysis.measures.columns), 'measure')}, "
                            f"{count_of(analysis.communities.count, 'community', 'communities')}")
         analyses.append(analysis)
+    return analyses
 
+
+def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[str, str], *,
+               notes: dict[str, str], summary: str | None, build_info: dict[str, str],
+               progress: Progress, cache: ResultCache | None) -> dict[str, bytes]:
+    """Every file of the site but the marker and manifest: figures, pages and downloads.
+    ``cache`` None draws and writes everything anew and keeps nothing."""
     inputs = []
     files: dict[str, bytes] = {}
     for net, analysis in zip(study.networks, analyses):
         settings = _figure_settings(net)
         figure_key = figures_key(keys[net.id], settings)
-        figures = cache.figures(figure_key)
+        figures = cache.figures(figure_key) if cache is not None else None
         if figures is not None:
             progress.stage("draw", f"{net.id}: cached")
         else:
             figures = draw_network(analysis, settings)
-            cache.store_figures(figure_key, figures)
+            if cache is not None:
+                cache.store_figures(figure_key, figures)
             progress.stage("draw", f"{net.id}: {count_of(len(figures), 'figure')}")
         inputs.append(NetworkPageInput(config=net, analysis=analysis, figures=figures))
         for figure in figures:
@@ -281,21 +302,16 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
 
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
-
     files.update(pages)
     for net, analysis in zip(study.networks, analyses):
-        downloads = cache.files(keys[net.id])
+        downloads = cache.files(keys[net.id]) if cache is not None else None
         if downloads is None:
             downloads = network_files(analysis)
-            cache.store_files(keys[net.id], downloads)
+            if cache is not None:
+                cache.store_files(keys[net.id], downloads)
         files.update(downloads)
     files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
-    count = write_site(study.output, files, inputs=_input_files(study, notes))
-    cache.record_site(study.output, site_key)
-    cache.prune()
-    size = sum(len(b) for b in files.values())
-    progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
-    return BuildResult(study=study, output=study.output, files=count, networks=analyses)
+    return files
 
 
 def clean_study(project: Path | str) -> list[Path]:
