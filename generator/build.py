@@ -189,7 +189,8 @@ def build_study(project: Path | str, *, output: Path | None = None,
 
     Results of unchanged networks come from ``<study>/.netfolio-cache/``; ``fresh`` ignores it
     and writes it anew."""
-    return Rebuilder(project, output=output, progress=progress).build(fresh=fresh)
+    return Rebuilder(project, output=output, progress=progress,
+                     keep_results=False).build(fresh=fresh)
 
 
 class Rebuilder:
@@ -197,10 +198,12 @@ class Rebuilder:
     each build in memory so the next one redoes only what an edit changed."""
 
     def __init__(self, project: Path | str, *, output: Path | None = None,
-                 progress: Progress | None = None):
+                 progress: Progress | None = None, keep_results: bool = True):
         self.project = project
         self.output = output
         self.progress = progress or Progress(quiet=True)
+        self.keep_results = keep_results
+        self.builds = 0  # finished builds
         self._cache: ResultCache | None = None
 
     def build(self, *, fresh: bool = False) -> BuildResult:
@@ -213,7 +216,12 @@ class Rebuilder:
             # A build killed between its two renames left the last site aside; put it back
             # first, so it is in place even if this build then stops on bad data.
             recover_interrupted_site(study.output)
-            return _build_holding_lock(study, self.progress, self._cache_for(study, fresh))
+            # The first build of a preview writes the site even when it is up to date, so its
+            # results are in memory for the edits that follow.
+            result = _build_holding_lock(study, self.progress, self._cache_for(study, fresh),
+                                         skip_if_current=self.builds > 0 or not self.keep_results)
+        self.builds += 1
+        return result
 
     def _cache_for(self, study: StudyConfig, fresh: bool) -> ResultCache:
         folder = study.root / CACHE_DIR
@@ -230,7 +238,8 @@ def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
     return waiting
 
 
-def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCache) -> BuildResult:
+def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCache, *,
+                        skip_if_current: bool = True) -> BuildResult:
     """Every stage after config load; the caller holds the study's lock.
 
     A network whose inputs, settings and versions are unchanged is taken from the cache, neither
@@ -240,7 +249,7 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     notes, summary = _read_notes(study)
     build_info = _build_info()
     site_key = _site_key(study, keys, notes, summary, build_info)
-    if cache.site_is_current(study.output, site_key):
+    if skip_if_current and cache.site_is_current(study.output, site_key):
         progress.stage("publish", f"nothing changed: {study.output} is up to date")
         return BuildResult(study=study, output=study.output, files=0, up_to_date=True)
     analyses = study_analyses(study, keys, progress, cache)
@@ -283,9 +292,11 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
     ``cache`` None draws and writes everything anew and keeps nothing."""
     inputs = []
     files: dict[str, bytes] = {}
+    shown: dict[str, str] = {}  # per network: the key of what its pages show
     for net, analysis in zip(study.networks, analyses):
         settings = _figure_settings(net)
         figure_key = figures_key(keys[net.id], settings)
+        shown[net.id] = figure_key  # it holds the analysis key too
         figures = cache.figures(figure_key) if cache is not None else None
         if figures is not None:
             progress.stage("draw", f"{net.id}: cached")
@@ -300,7 +311,12 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
 
-    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info)
+    reuse = None
+    if cache is not None:
+        reuse = cache.page_reuse
+        reuse.networks = shown
+    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
+                        reuse=reuse)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     for net, analysis in zip(study.networks, analyses):

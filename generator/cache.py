@@ -33,6 +33,7 @@ from .analyse.provenance import library_versions
 from .config import NetworkConfig, StudyConfig
 from .draw import Figure, FigureSettings
 from .errors import Finding
+from .render.site import PageReuse
 
 __all__ = [
     "CACHE_DIR",
@@ -243,6 +244,7 @@ class ResultCache:
         # Results of earlier builds by this same object (the preview builds again and again in
         # one process): taken from memory, not parsed from disk again.
         self._memory: dict[Path, Any] = {}
+        self.page_reuse = PageReuse()  # rendered pages, in memory only
 
     def begin_build(self, *, fresh: bool = False) -> None:
         """Start another build with this cache: forget which entries the last one used."""
@@ -250,6 +252,7 @@ class ResultCache:
         self._used = set()
         if fresh:
             self._memory.clear()
+            self.page_reuse = PageReuse()
 
     # -- reading --------------------------------------------------------------------------------
 

@@ -315,3 +315,22 @@ def test_replace_is_not_needed_to_read_a_cached_analysis(tmp_path):
     (analysis,) = build_study(root, output=tmp_path / "site").networks
     loaded = analysis_from_json(analysis_to_json(analysis))
     assert replace(loaded, title="Other").title == "Other"
+
+
+def test_a_rebuilder_reuses_pages_yet_writes_what_a_fresh_build_writes(tmp_path):
+    from generator.build import Rebuilder
+
+    root = _study(tmp_path / "study")
+    (root / "notes").mkdir()
+    (root / "notes" / "a.md").write_text("# First title\n\nx\n")
+    stream = io.StringIO()
+    rebuilder = Rebuilder(root, output=tmp_path / "preview", progress=Progress(stream))
+    rebuilder.build()
+    for text in ("# First title\n\ny\n", "# Second title\n\ny\n"):  # body, then the nav title
+        (root / "notes" / "a.md").write_text(text)
+        rebuilder.build()
+        _build(root, tmp_path / "fresh", fresh=True)
+        assert _snapshot(tmp_path / "preview") == _snapshot(tmp_path / "fresh")
+    page = (tmp_path / "preview" / "networks" / "net" / "index.html").read_text()
+    assert "Second title" in page and "First title" not in page
+    assert stream.getvalue().count("analyse  net: cached") == 2

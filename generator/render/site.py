@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import hashlib
+import json
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from markupsafe import Markup
 
@@ -31,7 +33,7 @@ from .site_map import (
 )
 from .theme import load_theme
 
-__all__ = ["NotePage", "RenderedNotes", "render_notes", "render_site"]
+__all__ = ["NotePage", "PageReuse", "RenderedNotes", "render_notes", "render_site"]
 
 
 @dataclass(frozen=True)
@@ -91,13 +93,16 @@ def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None)
 
 def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
                 summary: str | None, build_info: dict[str, str],
-                link_dois: bool = True) -> dict[str, bytes]:
+                link_dois: bool = True, reuse: PageReuse | None = None) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
     ``build_info`` holds "netfolio" (the version) and "built" (a date, or "" for none).
     ``link_dois`` makes each reference's DOI a link to https://doi.org/ (the only external
     address the site contains); without it DOIs are plain text.
+    ``reuse`` keeps the bytes of the pages of each network (and of the methods and downloads
+    pages) between builds in one process, keyed by what they show, so a note edit renders only
+    the pages the notes appear on.
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -115,6 +120,23 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         if item.config.nodes is not None:
             files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
     pages: list[tuple[str, str, object]] = []
+    reused: dict[str, bytes] = {}
+    frame_key = _digest(site.study_title, site.networks, site.notes, site.version,
+                        theme.digest(), link_dois, build_info.get("built", ""))
+
+    def keep(path: str, *parts: object) -> bool:
+        """True (and the page's bytes noted) when ``reuse`` holds this page for these inputs."""
+        if reuse is None:
+            return False
+        key = _digest(path, frame_key, *parts)
+        keys[path] = key
+        if key in reuse.pages:
+            reused[path] = reuse.pages[key]
+            return True
+        return False
+
+    keys: dict[str, str] = {}
+    every_network = [reuse.networks.get(item.id, "") for item in networks] if reuse else []
 
     summary_html = written.summary.html if written.summary is not None else None
     pages.append((INDEX, "index.html", overview_context(
@@ -122,22 +144,28 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         built=build_info.get("built", ""))))
 
     for item in networks:
+        own = reuse.networks.get(item.id, "") if reuse else ""
         path = network_page(item.id)
-        pages.append((path, "network.html", network_context(item, site.frame(path, item.title))))
+        if not keep(path, own):
+            pages.append((path, "network.html",
+                          network_context(item, site.frame(path, item.title))))
         path = nodes_page(item.id)
-        frame = site.frame(path, f"{item.title}: every node", section=network_page(item.id),
-                           scripts=(TABLE_SCRIPT,))
-        pages.append((path, "nodes.html", nodes_context(item, frame)))
+        if not keep(path, own):
+            frame = site.frame(path, f"{item.title}: every node", section=network_page(item.id),
+                               scripts=(TABLE_SCRIPT,))
+            pages.append((path, "nodes.html", nodes_context(item, frame)))
 
-    pages.append((METHODS, "methods.html", methods_context(
-        site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
+    if not keep(METHODS, every_network):
+        pages.append((METHODS, "methods.html", methods_context(
+            site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
     note_findings = written.findings if notes or summary is not None else None
     pages.append((CHECKS, "checks.html", checks_context(
         site.frame(CHECKS, "Data checks"), networks, notes=note_findings)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
-    pages.append((DOWNLOADS, "downloads.html",
-                  downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files)))
+    if not keep(DOWNLOADS, every_network):
+        pages.append((DOWNLOADS, "downloads.html",
+                      downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files)))
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)
@@ -146,5 +174,24 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
 
     output = {path: theme.render(template, context).encode("utf-8")
               for path, template, context in pages}
+    if reuse is not None:
+        reuse.pages = {keys[path]: data for path, data in {**output, **reused}.items()
+                       if path in keys}
+    output.update(reused)
     output.update({f"static/{name}": data for name, data in theme.static.items()})
     return dict(sorted(output.items()))
+
+
+@dataclass
+class PageReuse:
+    """Pages kept between builds in one process. ``networks`` maps a network id to a key of
+    everything its pages show (its analysis and figures); ``pages`` holds the last build's
+    reusable pages by the key of their inputs (replaced on every build)."""
+
+    networks: dict[str, str] = field(default_factory=dict)
+    pages: dict[str, bytes] = field(default_factory=dict)
+
+
+def _digest(*parts: object) -> str:
+    text = json.dumps(parts, sort_keys=True, default=str, separators=(",", ":"))
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
