@@ -55,7 +55,9 @@ def assert_one_complete_site(study: Path) -> None:
 
 
 def start_build(study: Path) -> subprocess.Popen:
-    return subprocess.Popen([sys.executable, "-m", "generator", "build", str(study), "--quiet"],
+    # --fresh: each build writes a whole site, even when the study is unchanged
+    return subprocess.Popen([sys.executable, "-m", "generator", "build", str(study), "--quiet",
+                             "--fresh"],
                             cwd=REPO, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
 
 
@@ -122,7 +124,7 @@ SLOW_SWAP = textwrap.dedent("""
     go = Path(sys.argv[1])
     while not go.exists():
         time.sleep(0.005)
-    sys.exit(main(["build", sys.argv[2], "--quiet"]))
+    sys.exit(main(["build", sys.argv[2], "--quiet", "--fresh"]))
 """)
 
 
@@ -213,7 +215,7 @@ HANGING_BUILD = textwrap.dedent("""
                 time.sleep(600)
             return moved
         Path.rename = rename_then_hang
-    build_study(study)
+    build_study(study, fresh=True)  # a full build, though nothing changed
 """)
 
 
