@@ -27,7 +27,7 @@ from .publish import MARKER, check_output_folder, datapackage_json, network_file
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
-from .render.site import render_notes
+from .render.site import PartnerCopy, render_notes
 from .render.theme import load_theme
 from .vocabulary import count_of
 
@@ -287,14 +287,19 @@ def study_analyses(study: StudyConfig, keys: dict[str, str], progress: Progress,
 
 def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[str, str], *,
                notes: dict[str, str], summary: str | None, build_info: dict[str, str],
-               progress: Progress, cache: ResultCache | None) -> dict[str, bytes]:
+               progress: Progress, cache: ResultCache | None,
+               partner: PartnerCopy | None = None) -> dict[str, bytes]:
     """Every file of the site but the marker and manifest: figures, pages and downloads.
-    ``cache`` None draws and writes everything anew and keeps nothing."""
+    ``cache`` None draws and writes everything anew and keeps nothing. ``partner`` makes a
+    partner copy (pass ``cache`` None with it): its notice on every page, its sharing page,
+    and network maps that name nodes only if ``partner.labels``."""
     inputs = []
     files: dict[str, bytes] = {}
     shown: dict[str, str] = {}  # per network: the key of what its pages show
     for net, analysis in zip(study.networks, analyses):
         settings = _figure_settings(net)
+        if partner is not None:
+            settings = replace(settings, labels=partner.labels)
         figure_key = figures_key(keys[net.id], settings)
         shown[net.id] = figure_key  # it holds the analysis key too
         figures = cache.figures(figure_key) if cache is not None else None
@@ -316,7 +321,7 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
         reuse = cache.page_reuse
         reuse.networks = shown
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
-                        reuse=reuse)
+                        reuse=reuse, partner=partner)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     for net, analysis in zip(study.networks, analyses):

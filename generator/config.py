@@ -142,9 +142,17 @@ class MeasuresConfig:
 
 @dataclass(frozen=True, kw_only=True)
 class SharingConfig:
+    """Rules for partner bundles (``netfolio pack``). ``terms`` is a markdown file of sharing
+    terms inside the study folder; it need exist only when a bundle is packed, so a build never
+    stops for it. ``contact`` says whom partners ask. ``drop_given``: study.toml names ``drop``
+    itself, so each column it names must exist (those of the default list need not)."""
+
     pseudonymize: bool = True
     drop: tuple[str, ...] = ("name", "email")
     min_group: int = 5
+    terms: Path | None = None
+    contact: str | None = None
+    drop_given: bool = field(default=False, compare=False)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -409,10 +417,16 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         raise ConfigError(f"must be above 0, got {resolution}", key="communities.resolution")
     g = _Table(raw.get("significance", {}), "significance", ("null_samples",))
     m = _Table(raw.get("measures", {}), "measures", ("exact_paths_up_to", "path_sample_sources"))
-    sh = _Table(raw.get("sharing", {}), "sharing", ("pseudonymize", "drop", "min_group"))
+    sh = _Table(raw.get("sharing", {}), "sharing",
+                ("pseudonymize", "drop", "min_group", "terms", "contact"))
     drop = sh.get("drop", list, ["name", "email"])
     if not all(isinstance(d, str) for d in drop):
         raise ConfigError("must be a list of column names", key="sharing.drop")
+    terms = _sharing_terms(root, sh.get("terms", str))
+    contact = sh.get("contact", str)
+    if contact is not None and not contact.strip():
+        raise ConfigError("is empty; say whom partners ask about the bundle, or leave the key out",
+                          key="sharing.contact")
     si = _Table(raw.get("site", {}), "site", ("theme", "allow_html"))
     summary_path = _existing_file(root, summary, "study.summary") if summary is not None else None
     if summary_path is not None and summary_path.is_relative_to(output):
@@ -447,10 +461,24 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
             pseudonymize=sh.get("pseudonymize", bool, True),
             drop=tuple(drop),
             min_group=sh.positive_int("min_group", 5),
+            terms=terms,
+            contact=contact.strip() if contact is not None else None,
+            drop_given="drop" in sh.data,
         ),
         site=SiteConfig(theme=si.get("theme", str, "default"),
                         allow_html=si.get("allow_html", bool, False)),
     )
+
+
+def _sharing_terms(root: Path, raw: str | None) -> Path | None:
+    """The terms file's path, kept inside the study folder; whether it exists is checked when a
+    bundle is packed."""
+    if raw is None:
+        return None
+    if not raw.strip():
+        raise ConfigError("is empty; give the path of a markdown file in the study folder, or "
+                          "leave the key out", key="sharing.terms")
+    return _inside(root, raw, "sharing.terms")
 
 
 def _check_waves(networks: tuple[NetworkConfig, ...]) -> None:

@@ -10,10 +10,12 @@ __all__ = ["DEFAULT_SETTINGS", "Figure", "FigureSettings"]
 @dataclass(frozen=True, kw_only=True)
 class FigureSettings:
     """How one network's figures encode nodes: the node attribute (or "community") that colours
-    them and the measure that sizes them; None takes the defaults (community, degree)."""
+    them and the measure that sizes them; None takes the defaults (community, degree).
+    ``labels`` False draws the map without node names (a partner copy names no one)."""
 
     color_by: str | None = None
     size_by: str | None = None
+    labels: bool = True
 
 
 @dataclass(frozen=True)

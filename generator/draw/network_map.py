@@ -208,7 +208,8 @@ def _size_key(key_ax: Axes, sizes: NodeSizes) -> None:
 
 
 def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
-         labelled: list[int]) -> str:
+         labelled: list[int], *, named: bool = True) -> str:
+    """What the map shows, in words; ``named`` False: the map names no node."""
     n, m = len(analysis.layout), len(analysis.edges)
     kind = []
     if analysis.directed:
@@ -234,10 +235,11 @@ def _alt(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes,
                        f"{count_of(colours.categories, 'group')} ({list_in_words(parts)})")
     ids = list(analysis.measures.index)
     names = [node_name(analysis.labels[i], str(ids[i])) for i in labelled]
+    who = (f" Named on the map: the {count_of(len(labelled), 'node')} with the highest "
+           f"{sizes.measure}: {list_in_words(names)}." if named else
+           " No node is named on the map.")
     return (f"Network map of {count_of(n, 'node')} and {count_of(m, 'tie')}{kinds}; node size "
-            f"shows {sizes.measure}{size_range}; {colour_text}. Named on the map: the "
-            f"{count_of(len(labelled), 'node')} with the highest {sizes.measure}: "
-            f"{list_in_words(names)}.")
+            f"shows {sizes.measure}{size_range}; {colour_text}.{who}")
 
 
 def _caption(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes) -> str:
@@ -256,7 +258,7 @@ def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTI
     colours = colours or colour_nodes(analysis, settings)
     sizes = size_nodes(analysis, settings)
     xy = np.array(analysis.layout, dtype=float).reshape(-1, 2)
-    labelled = top_nodes(sizes.values, LABELLED_NODES)
+    labelled = top_nodes(sizes.values, LABELLED_NODES) if settings.labels else []
     frame = _frame(xy)
     title = f"{analysis.title}: network map"
     with drawing_style():
@@ -267,7 +269,8 @@ def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTI
         ax.set_axis_off()
         _draw_ties(ax, analysis, xy, sizes, frame)
         _draw_nodes(ax, xy, colours, sizes)
-        _draw_labels(ax, agg_renderer(fig), analysis, xy, sizes, labelled)
+        if settings.labels:
+            _draw_labels(ax, agg_renderer(fig), analysis, xy, sizes, labelled)
         fig.text(0.01, 1 - 0.12 / frame.height, title, ha="left", va="top", fontsize=10.5,
                  fontweight="bold")
         key_ax = fig.add_axes(frame.key_box)
@@ -278,5 +281,6 @@ def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTI
                     f"{count_of(len(analysis.edges), 'tie')}", fontsize=7.5,
                     color=QUIET_INK, ha="left", va="bottom", transform=key_ax.transAxes)
         svg, png = figure_bytes(fig, crop=True)  # legend text length varies
-    return Figure(name="map", title=title, alt=_alt(analysis, colours, sizes, labelled),
-                  caption=_caption(analysis, colours, sizes), svg=svg, png=png)
+    alt = _alt(analysis, colours, sizes, labelled, named=settings.labels)
+    return Figure(name="map", title=title, alt=alt, caption=_caption(analysis, colours, sizes),
+                  svg=svg, png=png)

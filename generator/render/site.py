@@ -24,6 +24,7 @@ from .site_map import (
     DOWNLOADS,
     INDEX,
     METHODS,
+    SHARING,
     PageFrame,
     SiteMap,
     network_page,
@@ -33,7 +34,8 @@ from .site_map import (
 )
 from .theme import load_theme
 
-__all__ = ["NotePage", "PageReuse", "RenderedNotes", "render_notes", "render_site"]
+__all__ = ["NotePage", "PageReuse", "PartnerCopy", "RenderedNotes", "SharingPage", "render_notes",
+           "render_site"]
 
 
 @dataclass(frozen=True)
@@ -43,6 +45,32 @@ class NotePage:
     page: PageFrame
     body: Markup
     has_title: bool  # the note opens with its own level-1 heading
+
+
+@dataclass(frozen=True, kw_only=True)
+class PartnerCopy:
+    """What turns the site into a partner copy: the notice in every page's header and what the
+    sharing page says. The caller words them; this stage lays them out. ``terms`` is markdown,
+    rendered as notes are; ``labels`` lets the network maps name nodes."""
+
+    notice: str
+    terms: str | None
+    terms_file: str  # where the terms were read, as findings name it
+    protections: tuple[str, ...]  # what was protected and how, one sentence each
+    cautions: tuple[str, ...]
+    contact: str | None
+    labels: bool = False
+
+
+@dataclass(frozen=True)
+class SharingPage:
+    """Everything ``sharing.html`` shows."""
+
+    page: PageFrame
+    terms: Markup | None
+    protections: tuple[str, ...]
+    cautions: tuple[str, ...]
+    contact: str | None
 
 TABLE_SCRIPT = "static/table.js"
 
@@ -93,7 +121,8 @@ def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None)
 
 def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
                 summary: str | None, build_info: dict[str, str],
-                link_dois: bool = True, reuse: PageReuse | None = None) -> dict[str, bytes]:
+                link_dois: bool = True, reuse: PageReuse | None = None,
+                partner: PartnerCopy | None = None) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -103,6 +132,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     ``reuse`` keeps the bytes of the pages of each network (and of the methods and downloads
     pages) between builds in one process, keyed by what they show, so a note edit renders only
     the pages the notes appear on.
+    ``partner`` makes a partner copy: every page says so in its header, and ``sharing.html``
+    holds its terms and cautions.
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -113,7 +144,13 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         networks=[(item.id, item.title) for item in networks],
         notes=[(stem, note.title or _stem_title(stem)) for stem, note in rendered.items()],
         version=build_info.get("netfolio", ""),
+        notice=partner.notice if partner is not None else "",
     )
+    terms = None
+    if partner is not None and partner.terms is not None:
+        terms = render_markdown(partner.terms, allow_html=study.site.allow_html,
+                                note_href=_note_linker(SHARING, set(notes)), shift_headings=2,
+                                drop_title="Sharing terms", file=partner.terms_file)
     files_as_written: dict[str, dict[str, str]] = {}
     for item in networks:
         files_as_written[item.id] = {"data": study.relative(item.config.data_file)}
@@ -159,6 +196,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         pages.append((METHODS, "methods.html", methods_context(
             site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
     note_findings = written.findings if notes or summary is not None else None
+    if terms is not None:  # the terms are often a note too: each finding is listed once
+        note_findings = tuple(dict.fromkeys((*(note_findings or ()), *terms.findings)))
     pages.append((CHECKS, "checks.html", checks_context(
         site.frame(CHECKS, "Data checks"), networks, notes=note_findings)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
@@ -171,6 +210,11 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         path = note_page(stem)
         pages.append((path, "note.html", NotePage(page=site.frame(path, title), body=note.html,
                                                   has_title=note.title is not None)))
+    if partner is not None:
+        pages.append((SHARING, "sharing.html", SharingPage(
+            page=site.frame(SHARING, "Sharing"), terms=terms.html if terms is not None else None,
+            protections=partner.protections, cautions=partner.cautions,
+            contact=partner.contact)))
 
     output = {path: theme.render(template, context).encode("utf-8")
               for path, template, context in pages}

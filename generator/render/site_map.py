@@ -7,9 +7,9 @@ from dataclasses import dataclass
 from urllib.parse import quote
 
 __all__ = [
-    "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "Link", "PageFrame",
-    "SiteMap", "figure_file", "network_file", "network_page", "nodes_page", "note_page",
-    "page_href",
+    "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
+    "PageFrame", "SiteMap", "figure_file", "network_file", "network_page", "nodes_page",
+    "note_page", "page_href",
 ]
 
 INDEX = "index.html"
@@ -18,6 +18,7 @@ CHECKS = "checks.html"
 DOWNLOADS = "downloads.html"
 DATAPACKAGE = "files/datapackage.json"
 MANIFEST = "manifest.json"
+SHARING = "sharing.html"  # only in a partner copy: its terms and what was protected
 
 
 def network_page(network_id: str) -> str:
@@ -68,6 +69,8 @@ class PageFrame:
     version: str
     scripts: tuple[str, ...] = ()  # hrefs of scripts the page loads
     subnav: tuple[Link, ...] = ()  # the pages of one network, on those pages
+    notice: str = ""  # a partner copy says so in every page's header; "" in the full report
+    notice_href: str = ""  # the sharing page, linked from the notice
 
     @property
     def stylesheet(self) -> str:
@@ -81,11 +84,12 @@ class SiteMap:
     """The pages of one site, their titles, and the navigation built for each of them."""
 
     def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
-                 notes: list[tuple[str, str]], version: str):
+                 notes: list[tuple[str, str]], version: str, notice: str = ""):
         self.study_title = study_title
         self.networks = networks  # (id, title) in study order
         self.notes = notes  # (stem, title), sorted by stem
         self.version = version
+        self.notice = notice  # set for a partner copy, which also has the sharing page
 
     def frame(self, path: str, title: str, *, section: str | None = None,
               scripts: tuple[str, ...] = ()) -> PageFrame:
@@ -98,6 +102,8 @@ class SiteMap:
         nav = [link("Overview", INDEX)]
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
+        if self.notice:
+            nav.append(link("Sharing", SHARING))
         notes = tuple(link(note_title, note_page(stem)) for stem, note_title in self.notes)
         subnav: tuple[Link, ...] = ()
         for net_id, _ in self.networks:
@@ -107,4 +113,6 @@ class SiteMap:
         root = "../" * path.count("/")
         return PageFrame(path=path, title=title, study_title=self.study_title, root=root,
                          nav=tuple(nav), notes_nav=notes, version=self.version,
-                         scripts=tuple(page_href(path, s) for s in scripts), subnav=subnav)
+                         scripts=tuple(page_href(path, s) for s in scripts), subnav=subnav,
+                         notice=self.notice,
+                         notice_href=page_href(path, SHARING) if self.notice else "")

@@ -1,0 +1,105 @@
+"""The bundle as a file: a deterministic zip of the site with README.txt, manifest.json and
+SHA256SUMS at its root.
+
+The same files give the same zip bytes: entries sorted by path, every timestamp the same
+(``SOURCE_DATE_EPOCH`` when set, else 1980-01-01, the earliest a zip can hold), every file
+mode 0644, relative paths only. The zip's comment marks it as netfolio's, so a later pack may
+replace it and never a file netfolio did not write.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import hashlib
+import posixpath
+import re
+import unicodedata
+import zipfile
+from collections.abc import Mapping
+from pathlib import Path
+
+from ..publish import manifest_json
+
+__all__ = ["BUNDLE_COMMENT", "MANIFEST", "README", "SUMS", "bundle_files", "is_netfolio_bundle",
+           "sha256sums", "title_slug", "write_zip", "zip_time"]
+
+BUNDLE_COMMENT = b"netfolio partner bundle"
+README = "README.txt"
+MANIFEST = "manifest.json"
+SUMS = "SHA256SUMS"
+_EARLIEST = (1980, 1, 1, 0, 0, 0)  # the zip format counts from 1980
+_FILE_MODE = 0o100644  # a regular file, rw-r--r--
+_UNIX = 3  # "made by" a Unix system, so unzip reads the mode
+
+
+def title_slug(title: str) -> str:
+    """A file name from the study title: ``Clinic collaborative: advice`` ->
+    ``clinic-collaborative-advice`` (accents dropped, anything else but a-z and 0-9 a dash)."""
+    plain = unicodedata.normalize("NFKD", title).encode("ascii", "ignore").decode("ascii")
+    slug = re.sub(r"[^a-z0-9]+", "-", plain.lower()).strip("-")
+    return slug[:80].rstrip("-") or "study"
+
+
+def zip_time(epoch: str | None) -> tuple[int, int, int, int, int, int]:
+    """The timestamp of every entry: ``SOURCE_DATE_EPOCH`` (UTC) if it is a whole number of
+    seconds from 1980 on, else 1980-01-01 00:00."""
+    if epoch is None or not epoch.strip().isdigit():
+        return _EARLIEST
+    when = dt.datetime.fromtimestamp(int(epoch), tz=dt.timezone.utc)
+    stamp = (when.year, when.month, when.day, when.hour, when.minute, when.second)
+    return max(stamp, _EARLIEST)
+
+
+def sha256sums(files: Mapping[str, bytes]) -> bytes:
+    """Lines ``sha256sum -c`` reads: the hex digest, two spaces, the path (sorted by path). A
+    path holding a backslash or a line break is escaped as GNU sha256sum writes it."""
+    lines = []
+    for path, data in sorted(files.items()):
+        digest = hashlib.sha256(data).hexdigest()
+        if "\\" in path or "\n" in path:
+            escaped = path.replace("\\", "\\\\").replace("\n", "\\n")
+            lines.append(f"\\{digest}  {escaped}\n")
+        else:
+            lines.append(f"{digest}  {path}\n")
+    return "".join(lines).encode("utf-8")
+
+
+def bundle_files(site: Mapping[str, bytes], readme: str) -> dict[str, bytes]:
+    """The site's files plus README.txt, manifest.json (every file but itself and the sums)
+    and SHA256SUMS (every file but itself)."""
+    files = dict(site)
+    files[README] = readme.encode("utf-8")
+    files[MANIFEST] = manifest_json(files)
+    files[SUMS] = sha256sums(files)
+    return dict(sorted(files.items()))
+
+
+def _safe(path: str) -> bool:
+    parts = path.split("/")
+    return (bool(path) and not path.startswith("/") and "\\" not in path
+            and ".." not in parts and "" not in parts and posixpath.normpath(path) == path)
+
+
+def write_zip(target: Path, files: Mapping[str, bytes], *,
+              date_time: tuple[int, int, int, int, int, int]) -> None:
+    """Write ``files`` (relative posix path -> bytes) to ``target`` as a deterministic zip."""
+    for path in files:
+        if not _safe(path):
+            raise ValueError(f"refusing to pack {path!r}: not a plain relative path")
+    with zipfile.ZipFile(target, "w") as archive:
+        for path, data in sorted(files.items()):
+            entry = zipfile.ZipInfo(path, date_time=date_time)
+            entry.external_attr = _FILE_MODE << 16
+            entry.create_system = _UNIX
+            entry.compress_type = zipfile.ZIP_DEFLATED
+            archive.writestr(entry, data, compresslevel=9)
+        archive.comment = BUNDLE_COMMENT
+
+
+def is_netfolio_bundle(path: Path) -> bool:
+    """Whether ``path`` is a zip that netfolio wrote (its comment says so)."""
+    try:
+        with zipfile.ZipFile(path) as archive:
+            return archive.comment.startswith(BUNDLE_COMMENT)
+    except (OSError, zipfile.BadZipFile):
+        return False
