@@ -14,7 +14,7 @@ from .errors import DataError, Finding, NetfolioError, UsageError
 
 __all__ = ["main"]
 
-VERBS = ("build", "check", "clean")
+VERBS = ("build", "check", "clean", "pack")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -38,6 +38,14 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("--quiet", "-q", action="store_true", help="print errors only")
     clean = verbs.add_parser("clean", help="remove the cache and the site netfolio made")
     clean.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    pack = verbs.add_parser("pack", help="write a partner bundle: a zip of the site with "
+                            "respondents' identities protected as [sharing] says")
+    pack.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    pack.add_argument("--out", type=Path,
+                      help="write the zip here (default: <study>/bundles/<title>.zip)")
+    pack.add_argument("--keep-labels", action="store_true",
+                      help="let the network maps name their largest nodes (by code)")
+    pack.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
     return parser
 
 
@@ -85,7 +93,22 @@ def _check(args: argparse.Namespace) -> int:
     return 0
 
 
-_HANDLERS = {"build": _build, "check": _check, "clean": _clean}
+def _pack(args: argparse.Namespace) -> int:
+    from .build import Progress
+    from .pack import SHORT_CAUTION, pack_study
+
+    result = pack_study(args.project, out=args.out, keep_labels=args.keep_labels,
+                        progress=Progress(quiet=args.quiet))
+    if result.new_key:
+        print(f"made the study's key {result.key_file} (keep it, never share it: the same key "
+              "gives the same codes in every bundle)")
+    print(f"checked {result.checked} original values: none is in the bundle")
+    print(f"bundle written to {result.path} ({result.files} files, {result.size / 1e6:.1f} MB)")
+    print(f"caution: {SHORT_CAUTION}")
+    return 0
+
+
+_HANDLERS = {"build": _build, "check": _check, "clean": _clean, "pack": _pack}
 
 
 def _run(argv: Sequence[str]) -> int:
