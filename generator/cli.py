@@ -14,7 +14,7 @@ from .errors import DataError, Finding, NetfolioError, UsageError
 
 __all__ = ["main"]
 
-VERBS = ("build", "check", "clean", "pack")
+VERBS = ("build", "check", "clean", "watch", "pack")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -38,6 +38,16 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("--quiet", "-q", action="store_true", help="print errors only")
     clean = verbs.add_parser("clean", help="remove the cache and the site netfolio made")
     clean.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    watch = verbs.add_parser("watch", help="build, serve a preview of the site on this computer "
+                             "and rebuild on every change")
+    watch.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
+    watch.add_argument("--port", type=_port, default=8150,
+                       help="port to serve on (default: 8150; 0 picks a free one)")
+    watch.add_argument("--host", default="127.0.0.1",
+                       help="address to serve on (default: 127.0.0.1, this computer only)")
+    watch.add_argument("--open", action="store_true", help="open the preview in a browser")
+    watch.add_argument("--quiet", "-q", action="store_true",
+                       help="no progress lines; one line per rebuild only")
     pack = verbs.add_parser("pack", help="write a partner bundle: a zip of the site with "
                             "respondents' identities protected as [sharing] says")
     pack.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
@@ -47,6 +57,13 @@ def _parser() -> argparse.ArgumentParser:
                       help="let the network maps name their largest nodes (by code)")
     pack.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
     return parser
+
+
+def _port(text: str) -> int:
+    """A port number for --port; 0 asks the system for a free one."""
+    if not text.isdigit() or int(text) > 65535:
+        raise argparse.ArgumentTypeError(f"'{text}' is not a port number (0 to 65535)")
+    return int(text)
 
 
 def _suggest_verb(argv: Sequence[str]) -> None:
@@ -93,6 +110,13 @@ def _check(args: argparse.Namespace) -> int:
     return 0
 
 
+def _watch(args: argparse.Namespace) -> int:
+    from .watch import watch_study
+
+    return watch_study(args.project, host=args.host, port=args.port, open_browser=args.open,
+                       quiet=args.quiet)
+
+
 def _pack(args: argparse.Namespace) -> int:
     from .build import Progress
     from .pack import SHORT_CAUTION, pack_study
@@ -108,7 +132,7 @@ def _pack(args: argparse.Namespace) -> int:
     return 0
 
 
-_HANDLERS = {"build": _build, "check": _check, "clean": _clean, "pack": _pack}
+_HANDLERS = {"build": _build, "check": _check, "clean": _clean, "watch": _watch, "pack": _pack}
 
 
 def _run(argv: Sequence[str]) -> int:
