@@ -400,6 +400,27 @@ def test_editing_a_note_shows_on_the_served_page(live: _Watch) -> None:
           what="the rebuild line")
 
 
+def test_a_page_asked_for_while_the_site_is_swapped_is_always_served(live: _Watch) -> None:
+    _good(live)
+    statuses: list[int] = []
+    stop = threading.Event()
+
+    def ask() -> None:
+        while not stop.is_set():
+            statuses.append(live.get("/notes/intro.html")[0])
+
+    asker = threading.Thread(target=ask)
+    asker.start()
+    try:
+        for words in ("Swap one", "Swap two", "Swap three"):
+            (live.study / "notes" / "intro.md").write_text(f"# Intro\n\n{words}.\n", encoding="utf-8")
+            _wait(lambda w=words: w.encode() in live.get("/notes/intro.html")[2], what=words)
+    finally:
+        stop.set()
+        asker.join()
+    assert len(statuses) > 10 and set(statuses) == {200}
+
+
 def test_a_broken_csv_is_reported_while_the_last_good_site_is_served_until_it_is_fixed(
         live: _Watch) -> None:
     _good(live)
@@ -418,6 +439,18 @@ def test_a_broken_csv_is_reported_while_the_last_good_site_is_served_until_it_is
     (live.study / "data" / "edges.csv").write_text(EDGES, encoding="utf-8")
     recovered = _wait(lambda: (s := live.state())["ok"] and s, what="the recovery")
     assert recovered["build"] == state["build"] + 1 and recovered["error"] is None
+
+
+def test_a_deleted_data_file_is_reported_and_the_last_good_site_stays(live: _Watch) -> None:
+    _good(live)
+    (live.study / "data" / "edges.csv").unlink()
+    state = _wait(lambda: (s := live.state())["ok"] is False and s, what="the failed build")
+    error = state["error"]
+    assert error["file"] == "study.toml"
+    assert "data/edges.csv" in error["message"] and "does not exist" in error["message"]
+    assert live.get("/index.html")[0] == 200
+    (live.study / "data" / "edges.csv").write_text(EDGES, encoding="utf-8")
+    _wait(lambda: live.state()["ok"], what="the recovery")
 
 
 @pytest.mark.parametrize("request_path", ["/../study.toml", "/%2e%2e/study.toml",
