@@ -115,7 +115,9 @@ def _paragraph(text: str) -> str:
     if text.startswith(" ") or "\n" in text:
         return text
     indent = "  " if text.startswith("* ") else ""
-    return textwrap.fill(text, width=78, subsequent_indent=indent)
+    # Addresses and codes stay whole: no break at a hyphen or inside a long word.
+    return textwrap.fill(text, width=78, subsequent_indent=indent, break_on_hyphens=False,
+                         break_long_words=False)
 
 
 def _section(title: str, paragraphs: list[str]) -> str:
