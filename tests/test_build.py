@@ -22,7 +22,7 @@ NETWORKS = ("advice", "coworking")
 
 
 def copy_example(dest: Path) -> Path:
-    shutil.copytree(EXAMPLE, dest, ignore=shutil.ignore_patterns("output"))
+    shutil.copytree(EXAMPLE, dest, ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
     return dest
 
 
