@@ -91,7 +91,8 @@ def _write_study(root: Path, note: str, *, allow_html: bool = False) -> Path:
 @pytest.fixture(scope="module")
 def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
     work = tmp_path_factory.mktemp("browser")
-    study = shutil.copytree(EXAMPLE, work / "example", ignore=shutil.ignore_patterns("output"))
+    study = shutil.copytree(EXAMPLE, work / "example",
+                            ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
     return build_study(study, output=work / "site").output
 
 
