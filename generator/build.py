@@ -31,7 +31,8 @@ from .render.site import PartnerCopy, render_notes
 from .render.theme import load_theme
 from .vocabulary import count_of
 
-__all__ = ["BuildResult", "Progress", "Rebuilder", "build_study", "check_study", "clean_study"]
+__all__ = ["BuildResult", "Progress", "Rebuilder", "build_info_stamp", "build_study", "check_study",
+           "clean_study", "read_notes", "read_text", "site_files", "study_analyses"]
 
 
 class Progress:
@@ -109,7 +110,7 @@ def _read_all(study: StudyConfig, progress: Progress, *, skip: Iterable[str] = (
     return cleaned
 
 
-def _read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
+def read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
     """Every notes/*.md and the summary; the errors of all of them before giving up."""
     notes: dict[str, str] = {}
     errors: list[Finding] = []
@@ -125,16 +126,16 @@ def _read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
             if not inside:
                 raise ConfigError(f"note {path.name} links outside the study folder", key="notes")
             try:
-                notes[path.stem] = _read_text(path, study)
+                notes[path.stem] = read_text(path, study)
             except DataError as exc:
                 errors += exc.findings
     if errors:
         raise DataError(errors)
-    summary = _read_text(study.summary, study) if study.summary else None
+    summary = read_text(study.summary, study) if study.summary else None
     return notes, summary
 
 
-def _read_text(path: Path, study: StudyConfig) -> str:
+def read_text(path: Path, study: StudyConfig) -> str:
     try:
         return path.read_text(encoding="utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -154,7 +155,7 @@ def _read_text(path: Path, study: StudyConfig) -> str:
                                 f"cannot be read: {exc.strerror or exc}")) from None
 
 
-def _build_info() -> dict[str, str]:
+def build_info_stamp() -> dict[str, str]:
     # No wall-clock time unless SOURCE_DATE_EPOCH asks for one, so rebuilds are byte-identical.
     epoch = os.environ.get("SOURCE_DATE_EPOCH")
     built = ""
@@ -170,7 +171,7 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
     for clean in cleaned.values():
         for finding in clean.checks.findings:
             report(finding)
-    notes, summary = _read_notes(study)
+    notes, summary = read_notes(study)
     for finding in render_notes(study, notes, summary).findings:  # a note too deep fails here
         report(finding)
     load_theme(study).check_templates()  # an unknown or broken theme fails here as in build
@@ -246,8 +247,8 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     read, analysed nor drawn again; the site is the same bytes either way."""
     progress.stage("config", f"read {study.study_file.name}: {count_of(len(study.networks), 'network')}")
     keys = {net.id: analysis_key(study, net) for net in study.networks}
-    notes, summary = _read_notes(study)
-    build_info = _build_info()
+    notes, summary = read_notes(study)
+    build_info = build_info_stamp()
     site_key = _site_key(study, keys, notes, summary, build_info)
     if skip_if_current and cache.site_is_current(study.output, site_key):
         progress.stage("publish", f"nothing changed: {study.output} is up to date")

@@ -18,7 +18,7 @@ from pathlib import Path
 import pandas as pd
 
 from ..analyse import NetworkAnalysis
-from ..build import Progress, _build_info, _read_notes, _read_text, site_files, study_analyses
+from ..build import Progress, build_info_stamp, read_notes, read_text, site_files, study_analyses
 from ..cache import CACHE_DIR, ResultCache, analysis_key
 from ..config import StudyConfig, load_study
 from ..errors import ConfigError, DataError
@@ -85,7 +85,7 @@ def pack_study(project: Path | str, *, out: Path | None = None, keep_labels: boo
 def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep_labels: bool,
                        progress: Progress) -> PackResult:
     keys = {net.id: analysis_key(study, net) for net in study.networks}
-    notes, summary = _read_notes(study)
+    notes, summary = read_notes(study)
     cache = ResultCache(study.root / CACHE_DIR, warn=progress.warn)
     cache.begin_build()
     analyses = study_analyses(study, keys, progress, cache)
@@ -116,7 +116,7 @@ def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep
         terms_file=study.relative(sharing.terms) if sharing.terms else "terms",
         protections=protections(facts), cautions=CAUTIONS, contact=facts.contact,
         labels=keep_labels)
-    build_info = _build_info()
+    build_info = build_info_stamp()
     site = site_files(protect_study(study, protection), protected, keys, notes=notes,
                       summary=summary, build_info=build_info, progress=progress, cache=None,
                       partner=partner)
@@ -149,7 +149,7 @@ def _read_terms(study: StudyConfig) -> str | None:
         raise ConfigError(f"the sharing terms file '{study.relative(path)}' does not exist; "
                           "write it or remove the key", key="sharing.terms", path=study.study_file)
     try:
-        return _read_text(path, study)
+        return read_text(path, study)
     except DataError as exc:
         raise PackError(f"the sharing terms {exc.format_message()}") from None
 
