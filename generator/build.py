@@ -251,6 +251,8 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
     build_info = build_info_stamp()
     site_key = _site_key(study, keys, notes, summary, build_info)
     if skip_if_current and cache.site_is_current(study.output, site_key):
+        for net in study.networks:
+            progress.stage("analyse", f"{net.id}: cached")
         progress.stage("publish", f"nothing changed: {study.output} is up to date")
         return BuildResult(study=study, output=study.output, files=0, up_to_date=True)
     analyses = study_analyses(study, keys, progress, cache)

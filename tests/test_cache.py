@@ -195,7 +195,8 @@ def test_a_build_with_nothing_changed_writes_nothing(tmp_path):
     before = _snapshot(tmp_path / "site")
     stamp = (tmp_path / "site" / "index.html").stat().st_mtime_ns
     lines = _build(root, tmp_path / "site")
-    assert "nothing changed" in lines and "analyse" not in lines
+    assert "nothing changed" in lines and "analyse  net: cached" in lines
+    assert "ingest" not in lines and "render" not in lines
     assert (tmp_path / "site" / "index.html").stat().st_mtime_ns == stamp
     assert _snapshot(tmp_path / "site") == before
 
