@@ -21,13 +21,17 @@ from .analyse import NetworkAnalysis, analyse_network
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import NetworkConfig, StudyConfig, load_study
 from .draw import FigureSettings, draw_network
+from .draw.ego import ego_figures
+from .draw.explorer import explorer_data
 from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
 from .publish import MARKER, check_output_folder, datapackage_json, network_files, write_site
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
+from .render.node_view import node_view_limit
 from .render.site import PartnerCopy, render_notes
+from .render.site_map import explorer_file
 from .render.theme import load_theme
 from .vocabulary import count_of
 
@@ -313,7 +317,14 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if cache is not None:
                 cache.store_figures(figure_key, figures)
             progress.stage("draw", f"{net.id}: {count_of(len(figures), 'figure')}")
-        inputs.append(NetworkPageInput(config=net, analysis=analysis, figures=figures))
+        explorer = explorer_data(analysis, settings)
+        if explorer is not None:
+            files[explorer_file(analysis.network_id)] = explorer.script()
+        ego = None
+        if len(analysis.nodes) <= node_view_limit(study.site.node_views):
+            ego = tuple(ego_figures(analysis, settings))
+        inputs.append(NetworkPageInput(config=net, analysis=analysis, figures=figures,
+                                       explorer=explorer, ego=ego))
         for figure in figures:
             base = f"networks/{analysis.network_id}/figures/{figure.name}"
             files[base + ".svg"] = figure.svg

@@ -159,6 +159,7 @@ class SharingConfig:
 class SiteConfig:
     theme: str = "default"
     allow_html: bool = False
+    node_views: bool | None = None  # a page per node; None: for networks up to 2,000 nodes
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -427,7 +428,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     if contact is not None and not contact.strip():
         raise ConfigError("is empty; say whom partners ask about the bundle, or leave the key out",
                           key="sharing.contact")
-    si = _Table(raw.get("site", {}), "site", ("theme", "allow_html"))
+    si = _Table(raw.get("site", {}), "site", ("theme", "allow_html", "node_views"))
     summary_path = _existing_file(root, summary, "study.summary") if summary is not None else None
     if summary_path is not None and summary_path.is_relative_to(output):
         raise ConfigError(f"'{summary}' lies inside the output folder, which is replaced on every "
@@ -466,7 +467,8 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
             drop_given="drop" in sh.data,
         ),
         site=SiteConfig(theme=si.get("theme", str, "default"),
-                        allow_html=si.get("allow_html", bool, False)),
+                        allow_html=si.get("allow_html", bool, False),
+                        node_views=si.get("node_views", bool, None)),
     )
 
 

@@ -243,3 +243,170 @@ def test_clicking_every_link_of_a_note_opens_no_dialog(note_sites: dict[str, Pat
     assert tab.dialogs == []
     if variant == "allow_html":  # the raw script, handlers and link were there, and refused
         assert len(tab.violations()) >= 3
+
+
+# ---------------------------------------------------------------------------------------------
+# The explorable map
+
+def _explorer(tab: _Tab, site: Path, network: str = "advice"):
+    tab.open(site / "networks" / network / "index.html")
+    section = tab.page.locator("#explore")
+    section.scroll_into_view_if_needed()
+    return section
+
+
+def _node_circle(tab: _Tab, index: int):
+    return tab.page.locator(f'#explore circle.explorer-node[data-index="{index}"]')
+
+
+def test_the_explorable_map_draws_every_node_and_tie_of_the_downloads(site: Path, tab: _Tab
+                                                                       ) -> None:
+    import pandas as pd
+    section = _explorer(tab, site)
+    assert section.is_visible()
+    nodes = pd.read_csv(site / "files/advice/nodes.csv")
+    edges = pd.read_csv(site / "files/advice/edges.csv")
+    assert tab.page.locator("#explore circle.explorer-node").count() == len(nodes)
+    assert tab.page.locator("#explore line.explorer-tie").count() == len(edges)
+    assert tab.page.locator("#explore path.explorer-head").count() == len(edges)  # directed
+    assert tab.console == [] and tab.violations() == []
+
+
+def test_the_map_zooms_with_the_wheel_the_buttons_and_the_keys(site: Path, tab: _Tab) -> None:
+    section = _explorer(tab, site)
+    stage = tab.page.locator("#explore .explorer-stage")
+    assert section.get_attribute("data-scale") == "1.000"
+    box = stage.bounding_box()
+    tab.page.mouse.move(box["x"] + box["width"] / 2, box["y"] + box["height"] / 2)
+    tab.page.mouse.wheel(0, -400)
+    tab.page.wait_for_timeout(200)
+    assert float(section.get_attribute("data-scale")) > 1.5
+    tab.page.locator('#explore [data-zoom="reset"]').click()
+    tab.page.wait_for_timeout(100)
+    assert section.get_attribute("data-scale") == "1.000"
+    tab.page.locator('#explore [data-zoom="in"]').click()
+    tab.page.wait_for_timeout(100)
+    assert section.get_attribute("data-scale") == "1.400"
+    stage.focus()
+    tab.page.keyboard.press("-")
+    tab.page.wait_for_timeout(100)
+    assert section.get_attribute("data-scale") == "1.000"
+    transform = tab.page.locator("#explore g.explorer-view").get_attribute("transform")
+    tab.page.keyboard.press("ArrowLeft")
+    tab.page.wait_for_timeout(100)
+    assert tab.page.locator("#explore g.explorer-view").get_attribute("transform") != transform
+
+
+def test_pointing_at_a_node_highlights_exactly_its_ties(site: Path, tab: _Tab) -> None:
+    import pandas as pd
+    _explorer(tab, site)
+    nodes = list(pd.read_csv(site / "files/advice/nodes.csv", dtype=str)["id"])
+    edges = pd.read_csv(site / "files/advice/edges.csv", dtype=str)
+    index = nodes.index("s10")
+    touching = int(((edges["source"] == "s10") | (edges["target"] == "s10")).sum())
+    neighbours = set(edges.loc[edges["source"] == "s10", "target"]) | set(
+        edges.loc[edges["target"] == "s10", "source"])
+    _node_circle(tab, index).hover(force=True)
+    tab.page.wait_for_timeout(100)
+    assert tab.page.locator("#explore svg.has-focus").count() == 1
+    assert tab.page.locator("#explore line.explorer-tie.is-near").count() == touching
+    marked = tab.page.locator("#explore circle.is-neighbour")
+    assert {nodes[int(marked.nth(i).get_attribute("data-index"))]
+            for i in range(marked.count())} == neighbours
+    assert "s10" in tab.page.locator("#explore .explorer-details h3").inner_text()
+
+
+def test_finding_a_node_by_label_pins_it_and_links_to_its_row(site: Path, tab: _Tab) -> None:
+    import pandas as pd
+    section = _explorer(tab, site)
+    table = pd.read_csv(site / "files/advice/nodes.csv", dtype=str)
+    label = table.loc[table["id"] == "s38", "label"].iloc[0]
+    search = tab.page.locator("#explore .explorer-find input")
+    search.fill(label.lower())
+    search.press("Enter")
+    tab.page.wait_for_timeout(200)
+    assert tab.page.locator("#explore .explorer-find .status").inner_text() == (
+        f"Found {label} (s38).")
+    index = list(table["id"]).index("s38")
+    assert "is-focus" in _node_circle(tab, index).get_attribute("class")
+    assert float(section.get_attribute("data-scale")) >= 2.5  # zoomed in on it
+    own = tab.page.locator("#explore .explorer-details a", has_text="Its own page")
+    assert own.get_attribute("href") == f"nodes/node-{index + 1}.html"
+    link = tab.page.locator("#explore .explorer-details a", has_text="node table")
+    href = link.get_attribute("href")
+    assert href == f"nodes.html#node-{index + 1}"
+    link.click()
+    tab.page.wait_for_url(f"**/nodes.html#node-{index + 1}")
+    assert tab.page.evaluate("location.hash") == f"#node-{index + 1}"
+    assert tab.page.evaluate("document.querySelector(location.hash).cells[0].textContent") == "s38"
+    tab.open(site / "networks/advice/index.html")
+    search = tab.page.locator("#explore .explorer-find input")
+    search.fill("s38")
+    search.press("Enter")
+    tab.page.locator("#explore .explorer-details a", has_text="Its own page").click()
+    tab.page.wait_for_url(f"**/networks/advice/nodes/node-{index + 1}.html")
+    assert tab.page.locator("main h1").inner_text() == f"{label} (s38)"
+    search_missing = "nobody by this name"
+    tab.open(site / "networks/advice/index.html")
+    search = tab.page.locator("#explore .explorer-find input")
+    search.fill(search_missing)
+    search.press("Enter")
+    assert "No node matches" in tab.page.locator("#explore .explorer-find .status").inner_text()
+
+
+def test_the_colouring_can_be_switched_and_the_key_follows(site: Path, tab: _Tab) -> None:
+    _explorer(tab, site)
+    title = tab.page.locator("#explore .explorer-key-title")
+    assert title.inner_text() == "clinic"  # the study colours the advice map by clinic
+    key = """() => Array.from(document.querySelectorAll("#explore .explorer-key li span:first-of-type"))
+             .map((span) => span.textContent)"""
+    assert "Alderbrook" in tab.page.evaluate(key)
+    tab.page.locator("#explore .explorer-colour select").select_option(label="Community")
+    assert title.inner_text() == "Community"
+    import pandas as pd
+    communities = pd.read_csv(site / "files/advice/nodes.csv")["community"]
+    assert tab.page.evaluate(key) == [str(c) for c in sorted(set(communities))]
+    # Nodes of one community share one colour, and different communities differ (up to eight).
+    fills = tab.page.evaluate("""() => Array.from(document.querySelectorAll(
+        "#explore circle.explorer-node")).map((c) => c.getAttribute("fill"))""")
+    by_community = {c: {f for f, k in zip(fills, communities) if k == c} for c in set(communities)}
+    assert all(len(colours) == 1 for colours in by_community.values())
+    assert len({next(iter(v)) for v in by_community.values()}) == len(by_community)
+    assert tab.console == []
+
+
+# ---------------------------------------------------------------------------------------------
+# Search across the site
+
+def test_the_header_search_finds_a_node_by_label_and_opens_its_row(site: Path, tab: _Tab) -> None:
+    import pandas as pd
+    table = pd.read_csv(site / "files/coworking/nodes.csv", dtype=str)
+    label = table.loc[table["id"] == "s21", "label"].iloc[0]
+    tab.open(site / "methods.html")
+    search = tab.page.locator("#site-search-input")
+    search.fill(label.split()[1].lower())  # the family name alone
+    results = tab.page.locator("#site-search-results a")
+    assert results.count() >= 2  # the node in both networks
+    texts = [results.nth(i).inner_text() for i in range(results.count())]
+    assert any(f"{label} (s21)" in t and "Co-working" in t for t in texts)
+    target = next(i for i, t in enumerate(texts) if "Co-working" in t and label in t)
+    results.nth(target).click()
+    position = list(table["id"]).index("s21") + 1
+    tab.page.wait_for_url(f"**/networks/coworking/nodes/node-{position}.html")
+    assert tab.page.locator("main h1").inner_text() == f"{label} (s21)"
+    assert "Co-working" in tab.page.locator("main .lede").inner_text()
+    assert tab.console == []
+
+
+def test_the_header_search_says_when_nothing_is_found_and_keys_move_through_results(
+        site: Path, tab: _Tab) -> None:
+    tab.open(site / "networks/advice/index.html")
+    search = tab.page.locator("#site-search-input")
+    search.fill("no such thing anywhere")
+    assert "Nothing found" in tab.page.locator(".site-search-status").inner_text()
+    search.fill("density")
+    search.press("ArrowDown")
+    focused = tab.page.evaluate("document.activeElement.getAttribute('href')")
+    assert focused.endswith("#statistic-density")
+    tab.page.keyboard.press("Enter")
+    tab.page.wait_for_url("**#statistic-density")

@@ -138,7 +138,7 @@ def test_unknown_key_names_the_dotted_key_and_suggests_the_close_one(tmp_path, w
 def test_unknown_key_without_a_close_match_lists_the_valid_keys(tmp_path):
     error = config_error(study_with(tmp_path, tables={"site": {"zzzz": 1}}))
     assert error.key == "site.zzzz"
-    assert str(error) == "unknown key 'zzzz'; valid keys: theme, allow_html"
+    assert str(error) == "unknown key 'zzzz'; valid keys: theme, allow_html, node_views"
 
 
 def test_unknown_key_in_the_second_network_names_that_network(tmp_path):

@@ -347,7 +347,7 @@ def test_markdown_links_to_notes_point_at_their_pages():
 def test_summary_drops_a_heading_that_repeats_the_study_title_and_demotes_the_rest():
     note = render_markdown("# My Study\n\n## Part\n\ntext", shift_headings=1, drop_title="my study")
     assert "<h1>" not in note.html and "My Study" not in note.html
-    assert "<h3>Part</h3>" in note.html
+    assert "<h3 id=\"section-part\">Part</h3>" in note.html
     assert note.title == "My Study"
 
 

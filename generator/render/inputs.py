@@ -6,6 +6,8 @@ from dataclasses import dataclass
 
 from ..analyse import NetworkAnalysis
 from ..config import NetworkConfig
+from ..draw.ego import EgoFigure
+from ..draw.explorer import ExplorerData
 from ..draw.figure import Figure
 
 __all__ = ["NetworkPageInput"]
@@ -18,6 +20,8 @@ class NetworkPageInput:
     config: NetworkConfig
     analysis: NetworkAnalysis
     figures: list[Figure]
+    explorer: ExplorerData | None = None  # the explorable map's data; None: static map only
+    ego: tuple[EgoFigure, ...] | None = None  # every node's ego figure, when nodes get pages
 
     @property
     def id(self) -> str:

@@ -10,6 +10,7 @@ from typing import Any
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
+from ..draw.explorer import EXPLORER_MAX_NODES
 from ..vocabulary import (
     COMMUNITY,
     MEASURE_NAMES,
@@ -267,6 +268,27 @@ class NetworkLinks:
 
 
 @dataclass(frozen=True)
+class ExplorerView:
+    """The explorable map's frame on the page; the script fills it from the data file."""
+
+    network_id: str
+    label: str  # what the map is, for screen readers
+    nodes_href: str  # the node table, which a picked node links into
+    directed: bool
+    views_href: str = ""  # the folder of the nodes' own pages, when they have them
+
+
+def explorer_view(item: NetworkPageInput, frame: PageFrame) -> ExplorerView | None:
+    if item.explorer is None:
+        return None
+    return ExplorerView(network_id=item.id, label=f"Explorable map of {item.title}",
+                        nodes_href=frame.href(nodes_page(item.id)),
+                        directed=item.analysis.directed,
+                        views_href=frame.href(f"networks/{item.id}/nodes/") + "/"
+                        if item.ego is not None else "")
+
+
+@dataclass(frozen=True)
 class NetworkPage:
     """Everything ``network.html`` shows."""
 
@@ -283,6 +305,8 @@ class NetworkPage:
     omitted: tuple[tuple[str, str], ...]
     sampling: str | None
     links: NetworkLinks
+    explorer: ExplorerView | None = None
+    explorer_omitted: str | None = None  # why a large network has the static map only
 
 
 def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
@@ -310,4 +334,9 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
             downloads=frame.href(f"{DOWNLOADS}#{anchor}"),
             nodes_csv=frame.href(network_file(item.id, "nodes.csv")),
         ),
+        explorer=explorer_view(item, frame),
+        explorer_omitted=None if len(analysis.nodes) <= EXPLORER_MAX_NODES else (
+            f"With {count_of(len(analysis.nodes), 'node')}, this network is shown by the static "
+            f"map only: above {number(EXPLORER_MAX_NODES)} nodes a map in the browser would be "
+            "too slow to explore."),
     )

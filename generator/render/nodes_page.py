@@ -6,11 +6,11 @@ from dataclasses import dataclass
 
 import pandas as pd
 
-from ..vocabulary import DIGITS, number, sort_key, value_text
+from ..vocabulary import DIGITS, node_anchor, number, sort_key, value_text
 from .describe import measure_title
 from .inputs import NetworkPageInput
 from .network_page import sampling_sentence
-from .site_map import DOWNLOADS, PageFrame, network_file, network_page
+from .site_map import DOWNLOADS, PageFrame, network_file, network_page, node_view
 
 __all__ = ["Cell", "Column", "NodeRow", "NodesLinks", "NodesPage", "node_columns", "node_rows",
            "nodes_context"]
@@ -34,6 +34,8 @@ class Cell:
 class NodeRow:
     id: str
     cells: tuple[Cell, ...]  # every column after the id, in column order
+    anchor: str  # the row's fragment, which the explorable map links to
+    view: str = ""  # the node's own page, when nodes have pages
 
 
 def _table(item: NetworkPageInput) -> pd.DataFrame:
@@ -56,8 +58,10 @@ def node_columns(item: NetworkPageInput) -> tuple[Column, ...]:
     return tuple(columns)
 
 
-def node_rows(item: NetworkPageInput) -> tuple[NodeRow, ...]:
+def node_rows(item: NetworkPageInput, frame: PageFrame | None = None) -> tuple[NodeRow, ...]:
     table = _table(item)
+    views = ([frame.href(node_view(item.id, p)) for p in range(len(table))]
+             if frame is not None and item.ego is not None else [])
     numeric = [c.numeric for c in node_columns(item)[1:]]
     columns = [table.iloc[:, i].tolist() for i in range(table.shape[1])]
     written = 1 + len(item.analysis.attributes)  # label and attributes, as written in the data
@@ -66,7 +70,8 @@ def node_rows(item: NetworkPageInput) -> tuple[NodeRow, ...]:
         values = [column[position] for column in columns]
         rows.append(NodeRow(str(node), tuple(
             Cell(value_text(v) if i < written else number(v), sort_key(v), is_number)
-            for i, (v, is_number) in enumerate(zip(values, numeric)))))
+            for i, (v, is_number) in enumerate(zip(values, numeric))), node_anchor(position),
+            views[position] if views else ""))
     return tuple(rows)
 
 
@@ -96,7 +101,7 @@ def nodes_context(item: NetworkPageInput, frame: PageFrame) -> NodesPage:
         network_title=item.title,
         digits=DIGITS,
         columns=node_columns(item),
-        rows=node_rows(item),
+        rows=node_rows(item, frame),
         sampling=sampling_sentence(item.analysis),
         links=NodesLinks(
             network=frame.href(network_page(item.id)),

@@ -49,12 +49,14 @@ _ATTRIBUTES = {
     "img": {"src", "alt", "title"},
     "code": {"class"},  # language-<name> from a fenced block's info string
     "span": {"class"},  # image-alt
+    **{f"h{level}": {"id"} for level in range(1, 7)},  # section-<words>, for links and search
 }
 _ALIGN = {"left", "center", "right"}
 _ATTRIBUTE_VALUES = {"th": {"scope": {"col", "row"}, "align": _ALIGN}, "td": {"align": _ALIGN}}
 # Schemes a link may use; relative links always pass. Images pass only as relative paths.
 _LINK_SCHEMES = frozenset({"http", "https", "mailto"})
 _CLASSES = {"code": re.compile(r"language-[\w+#.-]+"), "span": re.compile(r"image-alt")}
+_HEADING_ID = re.compile(r"section-[\w-]+")  # the only ids a heading keeps
 
 # How a URL parser reads the start of an address (WHATWG URL standard, "basic URL parser"): it
 # trims C0 controls and spaces, deletes tabs and newlines anywhere, then looks for a scheme or a
@@ -78,6 +80,7 @@ class RenderedNote:
     html: Markup
     title: str | None  # the text of a level-1 heading that opens the note, if any
     findings: tuple[Finding, ...] = ()  # images not loaded, with the line where each is written
+    headings: tuple[tuple[int, str, str], ...] = ()  # (level as shown, text, id), in order
 
 
 def _is_local_image(src: str) -> bool:
@@ -100,6 +103,7 @@ class _LinksAndHeadings(Treeprocessor):
         self.drop_title = drop_title
         self.dropped_images = dropped_images  # (address as written, address as read)
         self.title: str | None = None
+        self.headings: list[tuple[int, str, str]] = []
 
     def _text(self, element: etree.Element) -> str:
         raw = "".join(element.itertext())
@@ -140,8 +144,25 @@ class _LinksAndHeadings(Treeprocessor):
                     element.set("href", target + (link.group("fragment") or ""))
             if element.tag == "th" and "scope" not in element.attrib:
                 element.set("scope", "col")  # markdown tables have one header row
-            if self.shift and re.fullmatch(r"h[1-6]", element.tag):
-                element.tag = f"h{min(6, int(element.tag[1]) + self.shift)}"
+            if re.fullmatch(r"h[1-6]", element.tag):
+                if self.shift:
+                    element.tag = f"h{min(6, int(element.tag[1]) + self.shift)}"
+                self._name_heading(element)
+
+    def _name_heading(self, heading: etree.Element) -> None:
+        """Give a heading an id from its words (section-..., numbered when repeated), so a
+        search result or a link can open the note at it."""
+        text = self._text(heading)
+        words = re.sub(r"[^\w]+", "-", text.casefold()).strip("-_") or "part"
+        anchor = f"section-{words[:60].rstrip('-')}"
+        taken = {a for _, _, a in self.headings}
+        number = 2
+        unique = anchor
+        while unique in taken:
+            unique = f"{anchor}-{number}"
+            number += 1
+        heading.set("id", unique)
+        self.headings.append((int(heading.tag[1]), text, unique))
 
 
 def _sanitise(text: str, dropped_images: list[tuple[str, str]]) -> str:
@@ -154,6 +175,8 @@ def _sanitise(text: str, dropped_images: list[tuple[str, str]]) -> str:
         if tag == "img" and attribute == "src" and not _is_local_image(value):
             dropped_images.append((value, value))
             return None
+        if attribute == "id":
+            return value if _HEADING_ID.fullmatch(value) else None
         if attribute == "class":
             pattern = _CLASSES.get(tag)
             kept = [name for name in value.split() if pattern and pattern.fullmatch(name)]
@@ -264,5 +287,7 @@ def render_markdown(text: str, *, allow_html: bool = False,
         dropped += [(src, src) for src in _RawImageSources(body).external]
     else:
         body = _sanitise(body, dropped)
-    title = extension.processor.title if extension.processor else None
-    return RenderedNote(Markup(body), title, _image_findings(text, file, dropped))
+    processor = extension.processor
+    title = processor.title if processor else None
+    headings = tuple(processor.headings) if processor else ()
+    return RenderedNote(Markup(body), title, _image_findings(text, file, dropped), headings)

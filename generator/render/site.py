@@ -16,18 +16,23 @@ from .downloads import downloads_context
 from .inputs import NetworkPageInput
 from .methods import methods_context
 from .network_page import network_context
+from .node_view import node_view_contexts
 from .nodes_page import nodes_context
 from .notes import RenderedNote, render_markdown
 from .overview import overview_context
+from .search import SEARCH_INDEX, search_entries, search_index
 from .site_map import (
     CHECKS,
     DOWNLOADS,
+    EXPLORE_SCRIPT,
     INDEX,
     METHODS,
     SHARING,
     PageFrame,
     SiteMap,
+    explorer_file,
     network_page,
+    node_view,
     nodes_page,
     note_page,
     page_href,
@@ -184,13 +189,16 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         own = reuse.networks.get(item.id, "") if reuse else ""
         path = network_page(item.id)
         if not keep(path, own):
+            scripts = (explorer_file(item.id), EXPLORE_SCRIPT) if item.explorer else ()
             pages.append((path, "network.html",
-                          network_context(item, site.frame(path, item.title))))
+                          network_context(item, site.frame(path, item.title, scripts=scripts))))
         path = nodes_page(item.id)
         if not keep(path, own):
             frame = site.frame(path, f"{item.title}: every node", section=network_page(item.id),
                                scripts=(TABLE_SCRIPT,))
             pages.append((path, "nodes.html", nodes_context(item, frame)))
+        if item.ego is not None:
+            pages += _node_views(item, networks, site, keep, every_network)
 
     if not keep(METHODS, every_network):
         pages.append((METHODS, "methods.html", methods_context(
@@ -223,7 +231,27 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                        if path in keys}
     output.update(reused)
     output.update({f"static/{name}": data for name, data in theme.static.items()})
+    output[SEARCH_INDEX] = search_index(search_entries(
+        networks, rendered, {stem: title for stem, title in site.notes},
+        node_pages=frozenset(item.id for item in networks if item.ego is not None)))
     return dict(sorted(output.items()))
+
+
+def _node_views(item: NetworkPageInput, networks: list[NetworkPageInput], site: SiteMap,
+                keep: Callable[..., bool], every_network: list[str]
+                ) -> list[tuple[str, str, object]]:
+    """The page of every node of ``item`` that ``keep`` does not already hold."""
+    assert item.ego is not None
+    labels = item.analysis.labels
+    paths = [node_view(item.id, position) for position in range(len(labels))]
+    wanted = [position for position, path in enumerate(paths) if not keep(path, every_network)]
+    if not wanted:
+        return []
+    frames = [site.frame(paths[p], f"{labels[p]} in {item.title}",
+                         section=network_page(item.id)) for p in range(len(paths))]
+    others = [(other, other.ego is not None) for other in networks if other.id != item.id]
+    contexts = node_view_contexts(item, frames, list(item.ego), others)
+    return [(paths[p], "node.html", contexts[p]) for p in wanted]
 
 
 @dataclass

@@ -8,8 +8,8 @@ from urllib.parse import quote
 
 __all__ = [
     "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
-    "PageFrame", "SiteMap", "figure_file", "network_file", "network_page", "nodes_page",
-    "note_page", "page_href",
+    "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "explorer_file", "figure_file", "network_file",
+    "network_page", "node_view", "nodes_page", "note_page", "page_href",
 ]
 
 INDEX = "index.html"
@@ -19,6 +19,7 @@ DOWNLOADS = "downloads.html"
 DATAPACKAGE = "files/datapackage.json"
 MANIFEST = "manifest.json"
 SHARING = "sharing.html"  # only in a partner copy: its terms and what was protected
+EXPLORE_SCRIPT = "static/explore.js"  # the theme's explorable map
 
 
 def network_page(network_id: str) -> str:
@@ -29,6 +30,12 @@ def nodes_page(network_id: str) -> str:
     return f"networks/{network_id}/nodes.html"
 
 
+def node_view(network_id: str, position: int) -> str:
+    """One node's own page, by its place in node order (from 1): ids may hold any character,
+    and a file name may not."""
+    return f"networks/{network_id}/nodes/node-{position + 1}.html"
+
+
 def note_page(stem: str) -> str:
     return f"notes/{stem}.html"
 
@@ -36,6 +43,11 @@ def note_page(stem: str) -> str:
 def network_file(network_id: str, name: str) -> str:
     """A download of one network: nodes.csv, edges.csv, statistics.csv or network.graphml."""
     return f"files/{network_id}/{name}"
+
+
+def explorer_file(network_id: str) -> str:
+    """The explorable map's data of one network, a script beside its page."""
+    return f"networks/{network_id}/explore-data.js"
 
 
 def figure_file(network_id: str, figure: str, extension: str) -> str:
@@ -110,6 +122,9 @@ class SiteMap:
             if path in (network_page(net_id), nodes_page(net_id)):
                 subnav = (link("Results", network_page(net_id)),
                           link("Every node", nodes_page(net_id)))
+            elif path.startswith(f"networks/{net_id}/nodes/"):  # a node's own page
+                subnav = (link("Results", network_page(net_id)),
+                          Link("Every node", page_href(path, nodes_page(net_id)), "true"))
         root = "../" * path.count("/")
         return PageFrame(path=path, title=title, study_title=self.study_title, root=root,
                          nav=tuple(nav), notes_nav=notes, version=self.version,

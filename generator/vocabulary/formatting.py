@@ -142,3 +142,15 @@ def exact_text(value: float | None) -> str:
 def node_name(label: str, node_id: str) -> str:
     """A node as a sentence names it: its label, with the id when the two differ."""
     return label if label == node_id else f"{label} ({node_id})"
+
+
+def node_anchor(position: int) -> str:
+    """The fragment of a node's row in the node table, by its place in node order (from 1):
+    ids may hold any character, and the place is as stable as the node list."""
+    return f"node-{position + 1}"
+
+
+def ordinal(rank: int) -> str:
+    """1st, 2nd, 3rd, 4th, 11th, 12th, 13th, 21st, 1,001st."""
+    suffix = "th" if 10 <= rank % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(rank % 10, "th")
+    return f"{rank:,}{suffix}"
