@@ -18,6 +18,8 @@ import pytest
 
 from generator.build import build_study
 
+pytestmark = pytest.mark.browser
+
 CHROMIUM = Path("/usr/bin/chromium")
 # CI installs the browser, so there a missing one is a failure, not a silent skip.
 if not CHROMIUM.exists() and os.environ.get("CI"):
