@@ -119,7 +119,9 @@ SIDEWAYS = f"""() => {{
   for (const element of document.body.querySelectorAll("*")) {{
     if (element.closest("{SIDEWAYS_OK}")) continue;
     const box = element.getBoundingClientRect();
-    if (box.width > 0 && box.right > root.clientWidth + 1) wide.push(element.tagName + "." + element.className);
+    if (box.width > 0 && box.right > root.clientWidth + 1) {{
+      wide.push(element.tagName + "." + element.className);
+    }}
   }}
   return [root.scrollWidth - root.clientWidth, wide.slice(0, 5)];
 }}"""
