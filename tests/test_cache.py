@@ -125,10 +125,12 @@ def _files():
 
 
 def test_an_analysis_survives_the_round_trip_exactly(tmp_path):
-    root = _study(tmp_path)
+    root = write_study(tmp_path, networks=[_net()], files=_files(), null_samples=4)
     result = build_study(root, output=tmp_path / "site")
     (analysis,) = result.networks
     again = analysis_from_json(json.loads(json.dumps(analysis_to_json(analysis))))
+    assert analysis.significance.tests and again.significance == analysis.significance
+    assert all(isinstance(t.nulls, tuple) for t in again.significance.tests)
     assert again.statistics == analysis.statistics and again.layout == analysis.layout
     assert again.communities == analysis.communities and again.versions == analysis.versions
     for frame in ("measures", "nodes", "edges"):

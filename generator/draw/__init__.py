@@ -13,9 +13,9 @@ from .distributions import draw_centrality, draw_degree
 from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
 from .network_map import draw_map
 from .node_encoding import colour_nodes
-from .null_models import NULL_FIGURE_PREFIX, draw_null_tests, null_figure_names
+from .null_models import draw_null_tests
 
-__all__ = ["NULL_FIGURE_PREFIX", "Figure", "FigureSettings", "draw_network", "null_figure_names"]
+__all__ = ["Figure", "FigureSettings", "draw_network"]
 
 
 def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS

@@ -63,15 +63,18 @@ def draw_null_test(analysis: NetworkAnalysis, test: NullTest, name: str) -> Figu
         counts, _, _ = ax.hist(values, bins=_bins(len(values)), range=bars, color=BAR_COLOUR,
                                edgecolor="white", linewidth=0.6,
                                label=f"{count_of(test.samples, 'rewired network')}")
-        tallest = float(np.max(counts)) if len(counts) else 0.0
-        ax.set_ylim(0, max(tallest, 1.0) * 1.3)  # headroom for the key
+        tallest = max(float(np.max(counts)) if len(counts) else 0.0, 1.0)
+        # The lines stop short of the top, leaving a band for the key in one row above the bars.
+        top = tallest * 1.1
         if test.null_mean is not None:
-            ax.axvline(test.null_mean, color=INK, linestyle=(0, (4, 3)), linewidth=1.0,
-                       label=f"their mean {number(test.null_mean)}")
-        ax.axvline(test.observed, color=_OBSERVED, linewidth=2.2,
-                   label=f"observed {number(test.observed)}")
+            ax.vlines(test.null_mean, 0, top, colors=INK, linestyles=(0, (4, 3)), linewidth=1.0,
+                      label=f"their mean {number(test.null_mean)}")
+        ax.vlines(test.observed, 0, top, colors=_OBSERVED, linewidth=2.2,
+                  label=f"observed {number(test.observed)}")
+        ax.set_ylim(0, tallest * 1.38)
         ax.set_xlim(*axis)
-        ax.legend(loc="upper left" if test.observed > (test.null_mean or 0.0) else "upper right")
+        ax.legend(loc="upper center", ncol=3, handlelength=1.6, columnspacing=1.4,
+                  borderaxespad=0.2)
         ax.set_xlabel(subject)
         ax.set_ylabel("rewired networks")
         ax.yaxis.set_major_locator(MaxNLocator(integer=True))

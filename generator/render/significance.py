@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..analyse import NetworkAnalysis, NullTest
-from ..draw import NULL_FIGURE_PREFIX, null_figure_names
+from ..draw.null_models import NULL_FIGURE_PREFIX, null_figure_names
 from ..vocabulary import (
     MISSING,
     SIGNIFICANCE_LEVEL,
@@ -77,7 +77,7 @@ def significance_view(analysis: NetworkAnalysis, figures: tuple[FigureView, ...]
                  for t in result.tests)
     n = result.samples
     keeps = ("its in-degree and out-degree" if analysis.directed else "its degree")
-    weights = (" and the tie weights shuffled over the new ties" if analysis.weighted else "")
+    weights = (", with the tie weights shuffled over the new ties" if analysis.weighted else "")
     intro = (f"Each statistic is compared with its values on {count(n)} {plural(n, 'network')} "
              f"rewired at random so that every node keeps {keeps}{weights}. A statistic reads as "
              f"higher or lower than chance only when p is below {number(SIGNIFICANCE_LEVEL)}: "
