@@ -16,6 +16,7 @@ from generator.build import Progress, build_study, clean_study
 from generator.cache import (
     CACHE_DIR,
     CACHE_TAG,
+    FORMAT_VERSION,
     analysis_from_json,
     analysis_key,
     analysis_to_json,

@@ -234,7 +234,8 @@ def _run_parallel(job: _Job, seeds: Sequence[int], workers: int, progress: Progr
     if method == "forkserver":
         context.set_forkserver_preload([__name__])  # import the libraries once, not per worker
     results: list[tuple[float | None, ...] | None] = [None] * len(seeds)
-    with ProcessPoolExecutor(max_workers=min(workers, len(seeds)), mp_context=context,
+    workers = min(workers, len(seeds), os.cpu_count() or 1)
+    with ProcessPoolExecutor(max_workers=workers, mp_context=context,
                              initializer=_install_job, initargs=(job,)) as pool:
         futures = {pool.submit(_worker_sample, seed): i for i, seed in enumerate(seeds)}
         for done, future in enumerate(as_completed(futures), start=1):

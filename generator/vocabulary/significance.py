@@ -34,7 +34,7 @@ SIGNIFICANCE_COLUMNS: tuple[tuple[str, str], ...] = (
      "degree_assortativity, assortativity:<attribute>, modularity)"),
     ("observed", "its value on the network as measured"),
     ("null_mean", "its mean over the rewired networks with the same degrees"),
-    ("null_sd", "its standard deviation over the rewired networks (n - 1 in the denominator)"),
+    ("null_sd", "its standard deviation over the rewired networks (N - 1 in the denominator)"),
     ("z", "(observed - null_mean) / null_sd; empty when null_sd is 0"),
     ("p", "two-sided empirical p-value (k + 1) / (N + 1), k counting the rewired networks at "
      "least as far from null_mean as the observed value"),
@@ -129,11 +129,11 @@ def significance_method(result: SignificanceResult, *, directed: bool, weighted:
              else "every node keeps its degree")
     sentences: list[tuple[str, tuple[str, ...]]] = [(
         f"Each statistic was compared with its values on {count(n)} "
-        f"{plural(n, 'network')} made by degree-preserving rewiring of this one: a tie a-b and a "
-        f"tie c-d, chosen at random, become a-d and c-b, and the swap is kept only if it makes "
-        f"no self-loop and no repeated tie. {result.swaps_per_tie} swaps per tie (10 x m) were "
-        f"tried for each rewired network, so {keeps}, the number of ties stays the same and the "
-        "network stays simple, while who is tied to whom is randomised.", ("maslov2002",))]
+        f"{plural(n, 'network')} made by degree-preserving rewiring of this one: two ties chosen "
+        f"at random exchange one end each (a-b and c-d become a-d and c-b), and the swap is kept "
+        f"only if it makes no self-loop and no repeated tie. {result.swaps_per_tie} swaps per tie "
+        f"(10 x m) were tried for each rewired network, so {keeps}, the number of ties stays the "
+        "same and the network stays simple, while who is tied to whom is randomised.", ("maslov2002",))]
     if weighted:
         sentences.append(("The network is weighted: after rewiring, the tie weights were "
                           "shuffled at random over the new ties, so the rewired network has the "
@@ -149,7 +149,7 @@ def significance_method(result: SignificanceResult, *, directed: bool, weighted:
         f"the same method as the communities reported ({method}, resolution {resolution}, best "
         f"of {count(runs)} {plural(runs, 'run')}), rerun on that network. A statistic not "
         "defined on the network as measured is not tested.", ()), (
-        "For each statistic: the observed value, the mean and standard deviation (n - 1 in the "
+        "For each statistic: the observed value, the mean and standard deviation (N - 1 in the "
         "denominator) over the rewired networks, z = (observed - mean) / sd (not defined when sd "
         "is 0), and a two-sided empirical p-value p = (k + 1) / (N + 1), where N counts the "
         "rewired networks on which the statistic is defined and k those whose value is at least "
