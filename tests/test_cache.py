@@ -236,7 +236,8 @@ def _entries(root: Path, kind: str) -> list[Path]:
     lambda text: text[: len(text) // 2],  # truncated
     # the payload changed, so its checksum fails
     lambda text: text.replace('\\"seed\\":', '\\"seed\\": 1, \\"x\\":', 1),
-    lambda text: text.replace('"version": 1', '"version": 999', 1),  # a later netfolio's entry
+    # a later netfolio's entry
+    lambda text: text.replace(f'"version": {FORMAT_VERSION}', '"version": 999', 1),
     lambda text: "not json at all",
 ])
 def test_a_damaged_or_foreign_entry_is_recomputed_with_one_warning(tmp_path, damage):
