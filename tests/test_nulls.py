@@ -310,3 +310,20 @@ def test_every_sample_seed_is_a_separate_draw():
     random.Random(0).random()  # the global generator's state plays no part
     assert _pairs(rewired(graph, seed=seeds[3], weighted=False)) == _pairs(alone)
 
+
+
+def test_parallel_processes_start_only_when_the_work_pays_for_them(monkeypatch):
+    from generator.analyse import nulls
+
+    small = nulls._Job(_graph(nx.path_graph(5)), False, pd.DataFrame(index=range(5)),
+                       ("transitivity", "modularity"), "leiden", 1.0, 20)
+    large = nulls._Job(_graph(nx.gnm_random_graph(400, 2000, seed=1)), False,
+                       pd.DataFrame(index=range(400)), ("transitivity", "modularity"), "leiden",
+                       1.0, 20)
+    monkeypatch.setattr(nulls.os, "cpu_count", lambda: 4)
+    assert nulls._automatic_workers(small, 200) == 1
+    assert nulls._automatic_workers(large, 200) == 4  # one per CPU, never more
+    monkeypatch.setattr(nulls.os, "cpu_count", lambda: 64)
+    assert nulls._automatic_workers(large, 40) == 40  # nor more than there are samples
+    monkeypatch.setattr(nulls.os, "cpu_count", lambda: 1)
+    assert nulls._automatic_workers(large, 200) == 1

@@ -46,7 +46,7 @@ _TOLERANCE = 1e-12
 # (nodes + ties); one unit takes about 2 microseconds): below it, starting them costs more than
 # they save. A forked worker starts in a fraction of a second; one that must import the
 # libraries first takes a few seconds.
-_PARALLEL_FROM = {"fork": 2_000_000, "forkserver": 6_000_000, "spawn": 10_000_000}
+_PARALLEL_FROM = {"fork": 800_000, "forkserver": 6_000_000, "spawn": 10_000_000}
 
 Progress = Callable[[int, int], None]
 
