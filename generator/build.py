@@ -58,6 +58,18 @@ class Progress:
         print(f"{name:<8} {message} ({elapsed:.2f} s)", file=self.stream, flush=True)
         self._start = time.perf_counter()
 
+    def step(self, name: str, message: str) -> None:
+        """A line on the way through a long stage; the stage's clock keeps running."""
+        if not self.quiet:
+            print(f"{name:<8} {message}", file=self.stream, flush=True)
+
+    def samples(self, network_id: str) -> Callable[[int, int], None]:
+        """Reports null samples done for one network, each quarter of the way."""
+        def report(done: int, total: int) -> None:
+            if done == total or done % max(1, total // 4) == 0:
+                self.step("significance", f"{network_id}: {done}/{total} samples")
+        return report
+
 
 @dataclass
 class BuildResult:
@@ -283,7 +295,9 @@ def study_analyses(study: StudyConfig, keys: dict[str, str], progress: Progress,
             progress.stage("analyse", f"{net.id}: cached")
         else:
             analysis = analyse_network(cleaned[net.id], communities=study.communities,
-                                       measures=study.measures, seed=study.seed)
+                                       measures=study.measures, seed=study.seed,
+                                       significance=study.significance,
+                                       progress=progress.samples(net.id))
             cache.store_analysis(keys[net.id], analysis)
             progress.stage("analyse", f"{net.id}: "
                            f"{count_of(len(analysis.measures.columns), 'measure')}, "

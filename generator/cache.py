@@ -28,7 +28,15 @@ from typing import Any, TypeVar
 import pandas as pd
 
 from . import __version__
-from .analyse import CommunityResult, NetworkAnalysis, Omission, PathSampling, Statistic
+from .analyse import (
+    CommunityResult,
+    NetworkAnalysis,
+    NullTest,
+    Omission,
+    PathSampling,
+    SignificanceResult,
+    Statistic,
+)
 from .analyse.provenance import library_versions
 from .config import NetworkConfig, StudyConfig
 from .draw import Figure, FigureSettings
@@ -49,14 +57,14 @@ __all__ = [
 T = TypeVar("T")
 CACHE_DIR = ".netfolio-cache"
 FORMAT = "netfolio-cache"
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 # The Cache Directory Tagging Specification's tag: backup tools skip the folder, and clean knows
 # netfolio made it.
 CACHE_TAG = "CACHEDIR.TAG"
 _TAG_TEXT = ("Signature: 8a477f597d28d172789f06886806bc55\n"
              "# This folder holds netfolio's cache of results; netfolio clean removes it.\n")
 # Bumped whenever figures are drawn differently for the same analysis and settings.
-FIGURE_STYLE = 1
+FIGURE_STYLE = 2
 
 
 # ---------------------------------------------------------------------------------------------
@@ -174,7 +182,19 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "attributes": list(analysis.attributes),
         "findings": [_record(f) for f in analysis.findings],
         "versions": [[k, v] for k, v in analysis.versions.items()],
+        "significance": _significance_to_json(analysis.significance),
     }
+
+
+def _significance_to_json(result: SignificanceResult) -> dict[str, Any]:
+    return {**_record(result), "tests": [
+        {**_record(t), "nulls": list(t.nulls)} for t in result.tests]}
+
+
+def _significance_from_json(data: dict[str, Any]) -> SignificanceResult:
+    tests = tuple(NullTest(**{**t, "nulls": tuple(float(v) for v in t["nulls"])})
+                  for t in data["tests"])
+    return SignificanceResult(**{**data, "tests": tests})
 
 
 def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
@@ -197,6 +217,7 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
         attributes=tuple(data["attributes"]),
         findings=tuple(Finding(**f) for f in data["findings"]),
         versions={str(k): str(v) for k, v in data["versions"]},
+        significance=_significance_from_json(data["significance"]),
     )
 
 

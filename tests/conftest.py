@@ -33,10 +33,18 @@ def toml_value(value: Any) -> str:
     raise TypeError(f"no TOML form for {value!r}")
 
 
+# Test studies run no tests against rewired networks unless they ask: 200 rewired networks and
+# their figures cost seconds per build. ``null_samples=None`` leaves the table out altogether.
+TEST_NULL_SAMPLES = 0
+
+
 def study_toml(*, study: dict | None = None, networks: Sequence[dict] = (),
-               tables: dict[str, dict] | None = None) -> str:
+               tables: dict[str, dict] | None = None,
+               null_samples: int | None = TEST_NULL_SAMPLES) -> str:
     """The text of a study.toml; ``study`` defaults to a title only."""
     study = {"title": "Invented study"} if study is None else study
+    if null_samples is not None and "significance" not in (tables or {}):
+        tables = {**(tables or {}), "significance": {"null_samples": null_samples}}
     parts = ["[study]"] + [f"{k} = {toml_value(v)}" for k, v in study.items()]
     for net in networks:
         parts += ["", "[[network]]"] + [f"{k} = {toml_value(v)}" for k, v in net.items()]
@@ -52,7 +60,8 @@ def csv_text(header: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
 
 def write_study(root: Path, *, networks: Sequence[dict],
                 files: dict[str, str | bytes] | None = None, study: dict | None = None,
-                tables: dict[str, dict] | None = None) -> Path:
+                tables: dict[str, dict] | None = None,
+                null_samples: int | None = TEST_NULL_SAMPLES) -> Path:
     """Write study.toml and the given data files (text is written as UTF-8) under ``root``."""
     root.mkdir(parents=True, exist_ok=True)
     for name, content in (files or {}).items():
@@ -62,8 +71,8 @@ def write_study(root: Path, *, networks: Sequence[dict],
             path.write_bytes(content)
         else:
             path.write_text(content, encoding="utf-8")
-    (root / "study.toml").write_text(study_toml(study=study, networks=networks, tables=tables),
-                                     encoding="utf-8")
+    (root / "study.toml").write_text(study_toml(study=study, networks=networks, tables=tables,
+                                                null_samples=null_samples), encoding="utf-8")
     return root
 
 

@@ -21,8 +21,16 @@ EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
 NETWORKS = ("advice", "coworking")
 
 
-def copy_example(dest: Path) -> Path:
+def copy_example(dest: Path, *, null_samples: int | None = None) -> Path:
+    """A copy of the example study; ``null_samples`` replaces its 200 rewired networks with
+    fewer, for tests that need a full build but not the whole null-model test."""
     shutil.copytree(EXAMPLE, dest, ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
+    if null_samples is not None:
+        toml = dest / "study.toml"
+        text = toml.read_text("utf-8")
+        assert "null_samples = 200" in text
+        toml.write_text(text.replace("null_samples = 200", f"null_samples = {null_samples}"),
+                        "utf-8")
     return dest
 
 
@@ -131,7 +139,7 @@ def test_a_second_build_from_another_folder_is_byte_identical(site: Path, tmp_pa
 
 
 def test_a_label_with_markup_is_escaped_on_every_page(tmp_path: Path) -> None:
-    study = copy_example(tmp_path / "study")
+    study = copy_example(tmp_path / "study", null_samples=10)
     staff = study / "data" / "staff.csv"
     text = staff.read_text("utf-8").replace("Zoë Marrowby", "<script>alert(1)</script>")
     assert "<script>" in text
@@ -149,11 +157,13 @@ def test_a_label_with_markup_is_escaped_on_every_page(tmp_path: Path) -> None:
 
 def test_cli_build_prints_a_progress_line_per_stage(tmp_path: Path,
                                                     capsys: pytest.CaptureFixture) -> None:
-    study = copy_example(tmp_path / "study")
+    study = copy_example(tmp_path / "study", null_samples=8)
     assert main(["build", str(study)]) == 0
     err = capsys.readouterr().err
     for stage in ("config", "ingest", "analyse", "draw", "render", "publish"):
         assert re.search(rf"^{stage}\s+.*\(\d+\.\d\d s\)$", err, re.M), stage
+    for net in NETWORKS:
+        assert re.search(rf"^significance {net}: 8/8 samples$", err, re.M), net
     assert main(["build", str(study), "--quiet"]) == 0
     assert capsys.readouterr().err == ""
 
@@ -166,3 +176,27 @@ def test_top_node_tables_show_the_id_beside_the_label(site: Path) -> None:
     rows = list(csv.DictReader(io.StringIO((site / "files/advice/nodes.csv").read_text("utf-8"))))
     best = max(rows, key=lambda r: float(r["pagerank"]))
     assert f'{best["label"]} <span class="node-id">{best["id"]}</span>' in top
+
+
+def test_every_network_of_the_example_is_tested_against_200_rewired_networks(site: Path) -> None:
+    for net in NETWORKS:
+        rows = list(csv.DictReader(io.StringIO(
+            (site / f"files/{net}/significance.csv").read_text("utf-8"))))
+        assert {r["samples"] for r in rows} == {"200"}
+        names = [r["statistic"] for r in rows]
+        assert names[0] == "transitivity" and names[-1] == "modularity"
+        assert "assortativity:clinic" in names
+        assert ("reciprocity" in names) == (net == "advice")
+        for row in rows:
+            p = float(row["p"])
+            assert 1 / 201 - 1e-12 <= p <= 1  # (k + 1) / (N + 1) with N = 200
+            assert round(p * 201) == pytest.approx(p * 201)
+        page = (site / f"networks/{net}/index.html").read_text("utf-8")
+        assert 'id="significance"' in page and "figures/null-modularity.svg" in page
+        assert (site / f"networks/{net}/figures/null-assortativity-clinic.png").is_file()
+    # The example's own question: does advice stay inside clinics? The reading may say so only
+    # because the test backs it.
+    page = (site / "networks/advice/index.html").read_text("utf-8")
+    assert "Ties strongly prefer nodes alike in clinic" in page and "below 0.05" in page
+    methods = (site / "methods.html").read_text("utf-8")
+    assert "p = (k + 1) / (N + 1)" in methods and "doi:10.1126/science.1065103" in methods

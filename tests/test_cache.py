@@ -16,6 +16,7 @@ from generator.build import Progress, build_study, clean_study
 from generator.cache import (
     CACHE_DIR,
     CACHE_TAG,
+    FORMAT_VERSION,
     analysis_from_json,
     analysis_key,
     analysis_to_json,
@@ -125,10 +126,12 @@ def _files():
 
 
 def test_an_analysis_survives_the_round_trip_exactly(tmp_path):
-    root = _study(tmp_path)
+    root = write_study(tmp_path, networks=[_net()], files=_files(), null_samples=4)
     result = build_study(root, output=tmp_path / "site")
     (analysis,) = result.networks
     again = analysis_from_json(json.loads(json.dumps(analysis_to_json(analysis))))
+    assert analysis.significance.tests and again.significance == analysis.significance
+    assert all(isinstance(t.nulls, tuple) for t in again.significance.tests)
     assert again.statistics == analysis.statistics and again.layout == analysis.layout
     assert again.communities == analysis.communities and again.versions == analysis.versions
     for frame in ("measures", "nodes", "edges"):
@@ -233,7 +236,8 @@ def _entries(root: Path, kind: str) -> list[Path]:
     lambda text: text[: len(text) // 2],  # truncated
     # the payload changed, so its checksum fails
     lambda text: text.replace('\\"seed\\":', '\\"seed\\": 1, \\"x\\":', 1),
-    lambda text: text.replace('"version": 1', '"version": 999', 1),  # a later netfolio's entry
+    # a later netfolio's entry
+    lambda text: text.replace(f'"version": {FORMAT_VERSION}', '"version": 999', 1),
     lambda text: "not json at all",
 ])
 def test_a_damaged_or_foreign_entry_is_recomputed_with_one_warning(tmp_path, damage):

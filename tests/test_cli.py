@@ -21,6 +21,9 @@ edges = "data/edges.csv"
 nodes = "data/nodes.csv"
 label = "name"
 weight = "w"
+
+[significance]
+null_samples = 5
 """
 
 NODES = "id,name,team\na,Ana Sol,red\nb,Ben Ory,red\nc,Cai Lum,blue\nd,Dee Fen,blue\n"
@@ -107,6 +110,26 @@ def test_output_folder_not_made_by_netfolio_is_never_overwritten(tmp_path: Path,
     assert main(["build", str(study)]) == 1
     assert "was not made by netfolio" in capsys.readouterr().err
     assert (mine / "thesis.docx").read_text() == "precious"
+
+
+def test_negative_null_samples_exit_1_naming_the_key_without_a_traceback(tmp_path: Path,
+                                                                         capsys) -> None:
+    toml = STUDY.replace("null_samples = 5", "null_samples = -3")
+    study = make_study(tmp_path / "study", toml=toml)
+    for verb in ("build", "check"):
+        assert main([verb, str(study)]) == 1
+        err = capsys.readouterr().err
+        assert "significance.null_samples" in err and "must be at least 0, got -3" in err
+        assert "Traceback" not in err
+    assert not (study / "output").exists()
+
+
+def test_a_build_reports_its_null_samples_as_they_finish(tmp_path: Path, capsys) -> None:
+    study = make_study(tmp_path / "study")
+    assert main(["build", str(study)]) == 0
+    err = capsys.readouterr().err
+    assert "significance ties: 5/5 samples" in err
+    assert (study / "output" / "files" / "ties" / "significance.csv").is_file()
 
 
 def test_check_prints_every_finding_without_building(tmp_path: Path, capsys) -> None:

@@ -44,7 +44,8 @@ def config_error(root: Path) -> ConfigError:
 
 
 def test_minimal_study_loads_with_documented_defaults(tmp_path):
-    study = load_study(study_with(tmp_path))
+    study = load_study(write_study(tmp_path, networks=[net()], files={"data/edges.csv": EDGES},
+                                   null_samples=None))
     root = tmp_path.resolve()
     assert study.root == root
     assert study.title == "Invented study"

@@ -396,3 +396,52 @@ def test_tie_width_grows_mildly_with_strength():
 def test_community_caption_writes_the_method_as_every_page_does(undirected_figures):
     # One capitalisation of method names: "Leiden", never "leiden".
     assert undirected_figures[-1].caption.startswith("The Leiden method (best of")
+
+
+# ---------------------------------------------------------------------------------------------
+# Tests against chance
+
+
+@pytest.fixture(scope="module")
+def tested() -> NetworkAnalysis:
+    from generator.config import SignificanceConfig
+
+    return analyse_network(karate_network(), communities=CommunitiesConfig(runs=3),
+                           measures=MeasuresConfig(), seed=1,
+                           significance=SignificanceConfig(null_samples=8))
+
+
+def test_each_test_against_chance_gets_its_figure_after_the_others(tested):
+    figures = draw_network(tested)
+    names = [f.name for f in figures]
+    assert names[:len(UNDIRECTED_NAMES)] == UNDIRECTED_NAMES
+    assert names[len(UNDIRECTED_NAMES):] == [
+        "null-transitivity", "null-degree-assortativity", "null-assortativity-club",
+        "null-assortativity-age", "null-assortativity-team", "null-modularity"]
+    assert figure_digests(draw_network(tested)) == figure_digests(figures)
+
+
+def test_a_null_figure_says_in_words_where_the_observed_value_lies(tested):
+    from generator.draw.null_models import draw_null_tests
+
+    test = tested.significance.test("transitivity")
+    (figure, *_) = draw_null_tests(tested)
+    assert f"a line marks the observed value, {number(test.observed)}" in figure.alt
+    assert f"on 8 rewired networks with the same degrees: values from {number(min(test.nulls))}" \
+        in figure.alt
+    assert "(p = " in figure.alt and "the solid line is the network as measured" in figure.caption
+    ET.fromstring(figure.svg)
+    assert figure.png.startswith(PNG_SIGNATURE)
+
+
+def test_null_figure_names_keep_attributes_apart():
+    from generator.analyse.nulls import NullTest
+    from generator.draw.null_models import null_figure_names
+
+    def test(name: str) -> NullTest:
+        return NullTest(name, 0.1, 0.0, 0.1, 1.0, 0.5, 3, 2, 1, None, (0.0, 0.1, -0.1))
+
+    names = null_figure_names((test("assortativity:a b"), test("assortativity:a-b"),
+                               test("assortativity:Ünit")))
+    assert list(names.values()) == ["null-assortativity-a-b", "null-assortativity-a-b-2",
+                                    "null-assortativity-nit"]

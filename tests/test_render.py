@@ -765,3 +765,72 @@ def test_checks_page_shows_warnings_in_their_own_group(tmp_path):
     html = (tmp_path / "site" / "checks.html").read_text(encoding="utf-8")
     warnings = html[html.index('id="network-n-warning"'):html.index('id="network-n-fix"')]
     assert "differ only in upper or lower case" in warnings and "&#39;A&#39; and &#39;a&#39;" in warnings
+
+
+# ---------------------------------------------------------------------------------------------
+# Tests against chance
+
+
+@pytest.fixture(scope="module")
+def tested(tmp_path_factory):
+    """The render study with 6 rewired networks per network, its real figures drawn."""
+    from generator.config import SignificanceConfig
+    from generator.draw import draw_network
+
+    study = _study(tmp_path_factory.mktemp("tested"))
+    items = []
+    for net in study.networks:
+        analysis = analyse_network(read_network(study, net), communities=study.communities,
+                                   measures=study.measures, seed=study.seed,
+                                   significance=SignificanceConfig(null_samples=6))
+        items.append(NetworkPageInput(net, analysis, draw_network(analysis)))
+    return study, items, _render(study, items)
+
+
+def test_the_network_page_shows_each_test_with_its_reading_and_figure(tested):
+    _, items, site = tested
+    for item in items:
+        html = site[f"networks/{item.id}/index.html"].decode()
+        section = html[html.index('id="significance"'):html.index('id="positions"')]
+        tests = item.analysis.significance.tests
+        assert tests and len(_rows(section, "significance")) == len(tests)
+        assert "6 networks rewired at random" in section and "p is below 0.05" in section
+        for test in tests:
+            slug = re.sub("[^a-z0-9]+", "-", test.statistic)
+            assert f'id="figure-null-{slug}"' in section
+        assert "rewired networks with the same degrees (p = " in section
+        rest = html[html.index('id="positions"'):]
+        assert "figure-null-" not in rest  # the null figures are not shown again under More figures
+        assert 'href="../../files/' + item.id + '/significance.csv"' in section
+
+
+def test_the_methods_page_defines_the_rewiring_the_seeds_and_the_p_value(tested):
+    _, items, site = tested
+    html = site["methods.html"].decode()
+    assert html.count("Tests against chance</h3>") == len(items)
+    assert "p = (k + 1) / (N + 1)" in html and "|null - mean| &gt;= |observed - mean|" in html
+    assert "10 swaps per tie (10 x m)" in html and "6 networks made by degree-preserving" in html
+    assert "in-degree and its out-degree" in html  # the directed network
+    assert "tie weights were shuffled at random over the new ties" in html  # the weighted one
+    assert "random.Random seeded with the text &#34;nulls:3&#34;" in html or \
+        "random.Random seeded with the text &quot;nulls:3&quot;" in html
+    assert '<li id="ref-maslov2002">' in html and "doi:10.1126/science.1065103" in html
+    assert '<li id="ref-north2002">' in html
+
+
+def test_the_downloads_page_lists_significance_csv_with_its_columns(tested):
+    _, items, site = tested
+    html = site["downloads.html"].decode()
+    for item in items:
+        assert f'href="files/{item.id}/significance.csv"' in html
+    for column in ("null_mean", "null_sd", "z", "p", "samples"):
+        assert f"<code>{column}</code>" in html
+
+
+def test_untested_networks_say_so_on_the_page_and_the_methods_page(built):
+    _, items, site = built
+    html = site["networks/advice/index.html"].decode()
+    section = html[html.index('id="significance"'):html.index('id="positions"')]
+    assert "Not tested against chance: [significance] null_samples is 0." in section
+    assert "significance.csv" not in site["downloads.html"].decode()
+    assert "Not tested against chance" in site["methods.html"].decode()

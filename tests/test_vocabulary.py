@@ -224,3 +224,63 @@ def test_path_readings_give_steps_for_weighted_networks():
 ])
 def test_counted_and_percent_readings(name, value, text):
     assert _read(name, value) == text
+
+
+# ---------------------------------------------------------------------------------------------
+# Readings that know their test against rewired networks
+
+
+def _null(name: str, observed: float, mean: float, p: float, *, below: int, above: int,
+          samples: int = 200):
+    from generator.analyse.nulls import NullTest
+
+    return NullTest(name, observed, mean, 0.03, (observed - mean) / 0.03, p, samples, below, above,
+                    None, ())
+
+
+def test_an_assortativity_claims_a_preference_only_when_its_test_says_so():
+    clear = _null("assortativity:clinic", 0.42, -0.02, 1 / 201, below=200, above=0)
+    assert _read("assortativity:clinic", 0.42, attribute="clinic", test=clear) == (
+        "Ties clearly prefer nodes alike in clinic: r = 0.42 is higher than in all 200 rewired "
+        "networks with the same degrees, whose mean is -0.02 (p = 0.005, below 0.05).")
+    unclear = _null("assortativity:clinic", 0.42, 0.38, 0.34, below=140, above=60)
+    text = _read("assortativity:clinic", 0.42, attribute="clinic", test=unclear)
+    assert text.startswith("No clear tendency to join nodes alike or unlike in clinic was found")
+    assert "higher than in 140 of 200 rewired networks" in text
+    assert "(p = 0.34, not below 0.05)" in text and "prefer" not in text
+    untested = _read("assortativity:clinic", 0.42, attribute="clinic")
+    assert "not tested against chance" in untested and "prefer" not in untested
+
+
+def test_an_assortativity_below_its_rewired_networks_reads_as_avoidance():
+    low = _null("assortativity:unit", -0.3, 0.0, 0.01, below=0, above=198)
+    text = _read("assortativity:unit", -0.3, attribute="unit", test=low)
+    assert text.startswith("Ties avoid nodes alike in unit, joining unlike ones more often than")
+    assert "lower than in 198 of 200 rewired networks" in text and "(p = 0.01, below 0.05)" in text
+
+
+def test_degree_assortativity_reads_against_its_rewired_networks_not_zero():
+    # r is negative, but higher than every rewired network: compared with chance, ties join
+    # nodes of similar degree more often.
+    test = _null("degree_assortativity", -0.1, -0.3, 1 / 201, below=200, above=0)
+    text = _read("degree_assortativity", -0.1, test=test)
+    assert text.startswith("Ties join nodes of similar degree more often than chance would")
+    unclear = _null("degree_assortativity", -0.1, -0.12, 0.6, below=120, above=80)
+    assert _read("degree_assortativity", -0.1, test=unclear).startswith(
+        "No clear tendency to join nodes of similar or of different degree was found")
+
+
+def test_the_significance_table_readings_follow_p():
+    from generator.vocabulary import null_reading
+
+    assert null_reading(_null("transitivity", 0.5, 0.2, 1 / 201, below=200, above=0)) == (
+        "Clustering (transitivity) is higher than in all 200 rewired networks with the same "
+        "degrees (p = 0.005).")
+    assert null_reading(_null("transitivity", 0.5, 0.2, 21 / 201, below=180, above=20)) == (
+        "Clustering (transitivity) is not clearly different from rewired networks with the same "
+        "degrees (p = 0.1).")
+    assert null_reading(_null("modularity", 0.5, 0.2, 0.03, below=195, above=5)) == (
+        "Modularity of the communities found is higher than in 195 of 200 rewired networks "
+        "with the same degrees (p = 0.03).")
+    assert null_reading(_null("reciprocity", 0.1, 0.2, 0.02, below=3, above=197)).startswith(
+        "Reciprocity is lower than in 197 of 200")

@@ -2,25 +2,29 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import pandas as pd
 
-from ..config import CommunitiesConfig, MeasuresConfig
+from ..config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork
 from .communities import CommunityResult, find_communities
 from .graph import build_graph, tie_strengths, undirected_version
 from .layout import network_layout
 from .measures import Omission, PathSampling, node_measures
+from .nulls import NOT_REQUESTED, NullTest, SignificanceResult, null_model_tests
 from .provenance import library_versions
 from .statistics import Statistic, network_statistics
 
 __all__ = [
     "CommunityResult",
     "NetworkAnalysis",
+    "NullTest",
     "Omission",
     "PathSampling",
+    "SignificanceResult",
     "Statistic",
     "analyse_network",
     "tie_strengths",
@@ -53,6 +57,7 @@ class NetworkAnalysis:
     attributes: tuple[str, ...]  # node attribute columns of ``nodes``
     findings: tuple[Finding, ...]  # the data checks of ingest, passed on for the checks page
     versions: dict[str, str] = field(default_factory=dict)
+    significance: SignificanceResult = NOT_REQUESTED  # tests against rewired networks
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -63,8 +68,12 @@ class NetworkAnalysis:
 
 
 def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
-                    measures: MeasuresConfig, seed: int) -> NetworkAnalysis:
-    """Compute every measure, statistic and the community partition of one network."""
+                    measures: MeasuresConfig, seed: int,
+                    significance: SignificanceConfig | None = None,
+                    progress: Callable[[int, int], None] | None = None) -> NetworkAnalysis:
+    """Compute every measure, statistic and the community partition of one network, and (when
+    ``significance`` asks for null samples) test the statistics against rewired networks;
+    ``progress(done, samples)`` follows those tests."""
     graph = build_graph(network)
     weighted = network.weighted
     node = node_measures(graph, weighted=weighted, exact_up_to=measures.exact_paths_up_to,
@@ -96,4 +105,9 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
         attributes=network.attributes,
         findings=tuple(network.checks.findings),
         versions=library_versions(),
+        significance=null_model_tests(
+            graph, weighted=weighted, attributes=network.nodes[list(network.attributes)],
+            method=communities.method, resolution=communities.resolution, runs=communities.runs,
+            samples=significance.null_samples if significance else 0, seed=seed,
+            progress=progress),
     )

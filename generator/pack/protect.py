@@ -123,6 +123,8 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
         edges=_coded_edges(analysis, codes),
         attributes=kept,
         statistics=tuple(s for s in analysis.statistics if s.name not in dropped_statistics),
+        significance=replace(analysis.significance, tests=tuple(
+            t for t in analysis.significance.tests if t.statistic not in dropped_statistics)),
         findings=tuple(redact_finding(f, drop=protection.drop, withheld=withheld)
                        for f in analysis.findings),
     )

@@ -5,14 +5,23 @@ from __future__ import annotations
 
 import json
 import math
+from typing import Any
 
 import networkx as nx
 import pandas as pd
 
 from ..analyse import NetworkAnalysis
-from ..vocabulary import COMMUNITY, PATH_MEASURES, community_method, exact_text, measure
+from ..vocabulary import (
+    COMMUNITY,
+    PATH_MEASURES,
+    SIGNIFICANCE_COLUMNS,
+    community_method,
+    exact_text,
+    measure,
+)
 
-__all__ = ["datapackage_json", "edges_csv", "graphml", "network_files", "nodes_csv", "statistics_csv"]
+__all__ = ["datapackage_json", "edges_csv", "graphml", "network_files", "nodes_csv",
+           "significance_csv", "statistics_csv"]
 
 
 def _csv(frame: pd.DataFrame) -> bytes:
@@ -41,6 +50,26 @@ def edges_csv(analysis: NetworkAnalysis) -> bytes:
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:
     rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
     return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+
+
+def significance_csv(analysis: NetworkAnalysis) -> bytes:
+    """One row per statistic tested against rewired networks, at full precision."""
+    rows = [(t.statistic, exact_text(t.observed), exact_text(t.null_mean), exact_text(t.null_sd),
+             exact_text(t.z), exact_text(t.p), str(t.samples))
+            for t in analysis.significance.tests]
+    return _csv(pd.DataFrame(rows, columns=[name for name, _ in SIGNIFICANCE_COLUMNS]))
+
+
+def _significance_resource(a: NetworkAnalysis) -> dict[str, Any]:
+    types = {"statistic": "string", "samples": "integer"}
+    return {"name": f"{a.network_id}-significance", "path": f"{a.network_id}/significance.csv",
+            "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
+            "encoding": "utf-8",
+            "title": f"{a.title}: statistics against {a.significance.samples} rewired networks",
+            "schema": {"fields": [
+                {"name": name, "type": types.get(name, "number"),
+                 "description": text[0].upper() + text[1:] + "."}
+                for name, text in SIGNIFICANCE_COLUMNS]}}
 
 
 def _plain_value(value: object) -> object | None:
@@ -126,6 +155,8 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
                  {"name": "value", "type": "number",
                   "description": "Value; empty where not defined."}]}},
         ]
+        if a.significance.tests:
+            resources.append(_significance_resource(a))
     descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
                   "resources": resources}
     return (json.dumps(descriptor, indent=2, ensure_ascii=False) + "\n").encode("utf-8")
@@ -134,9 +165,12 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
 def network_files(analysis: NetworkAnalysis) -> dict[str, bytes]:
     """Every download of one network, keyed by its path under files/<id>/."""
     prefix = f"files/{analysis.network_id}/"
-    return {
+    files = {
         prefix + "nodes.csv": nodes_csv(analysis),
         prefix + "edges.csv": edges_csv(analysis),
         prefix + "statistics.csv": statistics_csv(analysis),
         prefix + "network.graphml": graphml(analysis),
     }
+    if analysis.significance.tests:
+        files[prefix + "significance.csv"] = significance_csv(analysis)
+    return files

@@ -8,6 +8,7 @@ from ..config import NetworkConfig
 from ..vocabulary import (
     LAYOUT_REFERENCES,
     MEASURE_NAMES,
+    NULL_REFERENCES,
     PALETTE_REFERENCES,
     REFERENCES,
     SAMPLING_REFERENCES,
@@ -113,5 +114,7 @@ def references_of(analysis: NetworkAnalysis) -> list[Reference]:
     if analysis.communities.objective is not None:  # the runs happened (the network has ties)
         keys += community_method(analysis.communities.method).references
         keys += STABILITY_REFERENCES
+    if analysis.significance.tests:
+        keys += NULL_REFERENCES
     keys += LAYOUT_REFERENCES + PALETTE_REFERENCES  # the map's layout and colours
     return [REFERENCES[k] for k in dict.fromkeys(keys)]

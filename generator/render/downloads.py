@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..vocabulary import COMMUNITY, PATH_MEASURES, count, measure
+from ..vocabulary import COMMUNITY, PATH_MEASURES, SIGNIFICANCE_COLUMNS, count, count_of, measure
 from .describe import weight_reading
 from .inputs import NetworkPageInput
 from .site_map import DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
@@ -89,7 +89,7 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
         path = network_file(item.id, name)
         return DownloadFile(path, frame.href(path), description, columns)
 
-    files = (
+    files: tuple[DownloadFile, ...] = (
         entry("nodes.csv", "One row per node: id, label, node attributes, then every measure at "
               "full precision.", node_columns_described(item, nodes_file)),
         entry("edges.csv", "The cleaned tie list used for the analysis (repeats merged, self-loops "
@@ -102,6 +102,12 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
         entry("network.graphml", "The network as GraphML (an open XML format most network tools "
               "read), with node attributes and measures as node data and the weight on each tie."),
     )
+    tested = item.analysis.significance
+    if tested.tests:
+        files += (entry("significance.csv", "Each statistic tested against chance: its value "
+                        f"against {count_of(tested.samples, 'network')} rewired at random with "
+                        "the same degrees (the Methods page says how), at full precision.",
+                        tuple(ColumnInfo(n, text) for n, text in SIGNIFICANCE_COLUMNS)),)
     figures = tuple(FigureDownload(
         title=f.title,
         svg_path=figure_file(item.id, f.name, "svg"),

@@ -16,6 +16,7 @@ from ..vocabulary import (
     community_method,
     measure,
     number,
+    significance_method,
     statistic,
 )
 from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
@@ -84,6 +85,7 @@ class NetworkMethods:
     community_citations: tuple[Citation, ...]
     stability: str
     stability_citations: tuple[Citation, ...]
+    significance: tuple[tuple[str, tuple[Citation, ...]], ...]  # paragraphs, each with its cites
     layout: str
     layout_citations: tuple[Citation, ...]
     seed: int
@@ -238,6 +240,10 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
                    "than chance. The share of runs that found exactly the kept partition is "
                    "reported too."),
         stability_citations=cite.cite(STABILITY_REFERENCES),
+        significance=tuple((text, cite.cite(keys)) for text, keys in significance_method(
+            analysis.significance, directed=analysis.directed, weighted=analysis.weighted,
+            method=method_title(analysis.communities.method), runs=analysis.communities.runs,
+            resolution=number(analysis.communities.resolution))),
         layout=(f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
                 f"undirected version{pull}, started from positions drawn with the study seed "
                 f"{analysis.seed} and scaled into a square, so the same data give the same "

@@ -37,6 +37,7 @@ from .describe import (
 )
 from .figures import FigureView, figure_views
 from .inputs import NetworkPageInput
+from .significance import SignificanceView, is_null_figure, significance_view
 from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
 
 __all__ = [
@@ -132,7 +133,8 @@ def _reading_context(stat: Statistic, analysis: NetworkAnalysis) -> Reading:
         pd.api.types.is_numeric_dtype(analysis.nodes[attribute].dtype))
     return Reading(value=float(stat.value or 0.0), attribute=attribute, numeric=numeric,
                    directed=analysis.directed, weighted=analysis.weighted,
-                   weight_means=analysis.weight_means, steps=stat.steps)
+                   weight_means=analysis.weight_means, steps=stat.steps,
+                   test=analysis.significance.test(stat.name))
 
 
 def statistic_rows(analysis: NetworkAnalysis) -> tuple[StatisticRow, ...]:
@@ -305,6 +307,7 @@ class NetworkPage:
     omitted: tuple[tuple[str, str], ...]
     sampling: str | None
     links: NetworkLinks
+    significance: SignificanceView
     explorer: ExplorerView | None = None
     explorer_omitted: str | None = None  # why a large network has the static map only
 
@@ -313,15 +316,16 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
     analysis = item.analysis
     figures = figure_views(frame, item.id, item.figures)
     anchor = f"network-{item.id}"
+    statistics = statistic_rows(analysis)
     return NetworkPage(
         page=frame,
         facts=network_facts(item),
-        statistics=statistic_rows(analysis),
+        statistics=statistics,
         map_figures=tuple(f for f in figures if f.name == "map"),
         position_figures=tuple(f for f in figures if f.name in _POSITION_FIGURES),
         community_figures=tuple(f for f in figures if f.name == "communities"),
         other_figures=tuple(f for f in figures if f.name not in ("map", "communities")
-                            and f.name not in _POSITION_FIGURES),
+                            and f.name not in _POSITION_FIGURES and not is_null_figure(f.name)),
         top_tables=top_tables(analysis),
         top_count=TOP_COUNT,
         communities=community_view(analysis.communities),
@@ -339,4 +343,9 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
             f"With {count_of(len(analysis.nodes), 'node')}, this network is shown by the static "
             f"map only: above {number(EXPLORER_MAX_NODES)} nodes a map in the browser would be "
             "too slow to explore."),
+        significance=significance_view(
+            analysis, tuple(f for f in figures if is_null_figure(f.name)),
+            anchors={row.name: row.anchor for row in statistics},
+            methods_href=frame.href(f"{METHODS}#{anchor}-significance"),
+            csv_href=frame.href(network_file(item.id, "significance.csv"))),
     )

@@ -70,6 +70,11 @@ _ALL = [
     Reference("danon2005", "Danon, L., Diaz-Guilera, A., Duch, J. & Arenas, A.: Comparing community "
               "structure identification. Journal of Statistical Mechanics P09008, 2005.",
               "10.1088/1742-5468/2005/09/P09008"),
+    Reference("maslov2002", "Maslov, S. & Sneppen, K.: Specificity and stability in topology of "
+              "protein networks. Science 296(5569):910-913, 2002.", "10.1126/science.1065103"),
+    Reference("north2002", "North, B. V., Curtis, D. & Sham, P. C.: A note on the calculation of "
+              "empirical P values from Monte Carlo procedures. American Journal of Human Genetics "
+              "71(2):439-441, 2002.", "10.1086/341527"),
     Reference("fruchterman1991", "Fruchterman, T. M. J. & Reingold, E. M.: Graph drawing by "
               "force-directed placement. Software: Practice and Experience 21(11):1129-1164, 1991.",
               "10.1002/spe.4380211102"),

@@ -1,16 +1,22 @@
 """Every network statistic netfolio writes: its row name in statistics.csv, title, definition,
 references, and its plain reading for a non-specialist as a function of the value.
 
-Readings claim no more than the number supports: a correlation or assortativity below 0.1 in size
-reads as "no clear tendency", and none of them is presented as more than chance, since no test
-against chance backs it."""
+Readings claim no more than the number supports. An assortativity claims a preference or an
+avoidance only when its test against rewired networks gives p below 0.05 (and says so); tested and
+not below, it reads as no clear tendency; untested, it says so, and a value below 0.1 in size reads
+as "no clear tendency"."""
 
 from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from .formatting import count_of, number, share
+from .significance import is_clear, null_clause
+
+if TYPE_CHECKING:
+    from ..analyse.nulls import NullTest
 
 __all__ = [
     "NEUTRAL_BELOW",
@@ -41,6 +47,7 @@ class Reading:
     weighted: bool = False
     weight_means: str = "strength"
     steps: float | None = None  # the same path statistic counting each tie as one step
+    test: NullTest | None = None  # the statistic's test against rewired networks, if it ran
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -102,8 +109,27 @@ def _strength_word(r: float) -> str:
     return "strongly" if size >= _STRONG else "clearly" if size >= _MODERATE else "slightly"
 
 
+def _tested(r: Reading) -> NullTest | None:
+    """The test a reading may lean on: one that ran and gave a p-value."""
+    test = r.test
+    return test if test is not None and test.p is not None and test.null_mean is not None else None
+
+
+def _above_chance(r: Reading, test: NullTest) -> bool:
+    return test.null_mean is not None and r.value > test.null_mean
+
+
 def _degree_assortativity(r: Reading) -> str:
     shown = number(r.value)
+    test = _tested(r)
+    if test is not None:
+        if not is_clear(test):
+            return ("No clear tendency to join nodes of similar or of different degree was found: "
+                    f"r = {shown} is {null_clause(test)}.")
+        side = ("nodes of similar degree" if _above_chance(r, test)
+                else "well-tied nodes with little-tied ones")
+        return (f"Ties join {side} more often than chance would with these degrees: r = {shown} "
+                f"is {null_clause(test)}.")
     if abs(r.value) < NEUTRAL_BELOW:
         return ("Ties show no clear tendency to join nodes of similar or of different degree "
                 f"(r = {shown}).")
@@ -116,6 +142,17 @@ def _degree_assortativity(r: Reading) -> str:
 
 def _attribute_assortativity(r: Reading) -> str:
     shown = number(r.value)
+    test = _tested(r)
+    if test is not None:
+        if not is_clear(test):
+            return (f"No clear tendency to join nodes alike or unlike in {r.attribute} was found: "
+                    f"r = {shown} is {null_clause(test)}.")
+        if _above_chance(r, test):
+            how = f"{_strength_word(r.value)} " if r.value > 0 else ""
+            return (f"Ties {how}prefer nodes alike in {r.attribute}: r = {shown} is "
+                    f"{null_clause(test)}.")
+        return (f"Ties avoid nodes alike in {r.attribute}, joining unlike ones more often than "
+                f"chance would: r = {shown} is {null_clause(test)}.")
     alike = f"with similar {r.attribute}" if r.numeric else f"of the same {r.attribute}"
     unlike = f"with different {r.attribute}" if r.numeric else f"of a different {r.attribute}"
     if abs(r.value) < NEUTRAL_BELOW:
