@@ -8,32 +8,22 @@ is skipped.
 
 from __future__ import annotations
 
-import os
 import re
-import shutil
 from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
+from browsing import build_example, launch, require_chromium
 
 from generator.build import build_study
 
 pytestmark = pytest.mark.browser
 
-CHROMIUM = Path("/usr/bin/chromium")
-# CI installs the browser, so there a missing one is a failure, not a silent skip.
-if not CHROMIUM.exists() and os.environ.get("CI"):
-    raise RuntimeError("CI needs Chromium at /usr/bin/chromium for the browser tests")
-if not CHROMIUM.exists():
-    pytest.skip("needs Chromium at /usr/bin/chromium (apt-get install chromium)",
-                allow_module_level=True)
+require_chromium()
 sync_api = pytest.importorskip("playwright.sync_api",
                                reason="needs Playwright for Python (pip install -e '.[test]')")
 
-EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
 THEME_CSS = Path(__file__).resolve().parents[1] / "themes" / "default" / "static" / "site.css"
-CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
-                 "--disable-component-update", "--no-first-run", "--disable-sync"]
 PAGES = ["index.html", "networks/advice/index.html", "networks/advice/nodes.html",
          "methods.html", "checks.html", "downloads.html", "notes/methods.html"]
 # The four spellings of a javascript: link from the issue, each hidden from a plain text match.
@@ -92,10 +82,7 @@ def _write_study(root: Path, note: str, *, allow_html: bool = False) -> Path:
 
 @pytest.fixture(scope="module")
 def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    work = tmp_path_factory.mktemp("browser")
-    study = shutil.copytree(EXAMPLE, work / "example",
-                            ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
-    return build_study(study, output=work / "site").output
+    return build_example(tmp_path_factory.mktemp("browser"))
 
 
 @pytest.fixture(scope="module")
@@ -115,7 +102,7 @@ def note_sites(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
 @pytest.fixture(scope="module")
 def browser() -> Iterator[object]:
     with sync_api.sync_playwright() as playwright:
-        chromium = playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        chromium = launch(playwright)
         yield chromium
         chromium.close()
 
