@@ -399,3 +399,35 @@ def test_the_header_search_says_when_nothing_is_found_and_keys_move_through_resu
     assert focused.endswith("#statistic-density")
     tab.page.keyboard.press("Enter")
     tab.page.wait_for_url("**#statistic-density")
+
+
+@pytest.fixture(scope="module")
+def large_site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The example's co-working network built as if it were above the explorable map's node
+    limit (the limit lowered to 20): the map shows its communities."""
+    from generator.draw import explorer as explorer_module
+
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(explorer_module, "EXPLORER_MAX_NODES", 20)
+        return build_example(tmp_path_factory.mktemp("large"))
+
+
+def test_a_network_above_the_limit_is_explored_by_its_communities(large_site: Path, tab: _Tab
+                                                                   ) -> None:
+    import pandas as pd
+    section = _explorer(tab, large_site, "coworking")
+    nodes = pd.read_csv(large_site / "files/coworking/nodes.csv")
+    edges = pd.read_csv(large_site / "files/coworking/edges.csv", dtype=str)
+    communities = nodes["community"].nunique()
+    assert section.is_visible() and "shows the" in section.locator(".notice").inner_text()
+    assert tab.page.locator("#explore circle.explorer-node").count() == communities
+    member = dict(zip(nodes["id"].astype(str), nodes["community"]))
+    pairs = {tuple(sorted((member[s], member[t]))) for s, t in zip(edges["source"], edges["target"])
+             if member[s] != member[t]}
+    assert tab.page.locator("#explore line.explorer-tie").count() == len(pairs)
+    _node_circle(tab, 0).hover(force=True)
+    tab.page.wait_for_timeout(100)
+    details = tab.page.locator("#explore .explorer-details").inner_text()
+    assert "Community 1" in details
+    assert f"Members\n{(nodes['community'] == 1).sum()}" in details
+    assert tab.console == [] and tab.violations() == []
