@@ -321,7 +321,7 @@ class NetworkPage:
     links: NetworkLinks
     significance: SignificanceView
     explorer: ExplorerView | None = None
-    explorer_omitted: str | None = None  # why a large network has the static map only
+    explorer_omitted: str | None = None  # why a network has no explorable map
 
 
 def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
