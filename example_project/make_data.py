@@ -15,6 +15,10 @@ It writes three CSV files under ``data/``; every name, clinic and number in them
                           no advice ties at all (isolates).
 * ``data/coworking.csv``  an undirected, unweighted co-working network among the same staff,
                           clustered by clinic, with a few ties from joint projects across clinics.
+* ``data/staff_wave2.csv`` and ``data/advice_wave2.csv``  the roster and the advice network a year
+                          later, after the Larkmoor and Quayside teams merged into one team (the
+                          ``team`` column): most ties of the first wave are kept, many new ties
+                          join the two merged clinics, three staff have left and two have joined.
 
 The advice file also carries, on purpose, the kind of faults real survey exports have, so that
 ``netfolio check`` has something to find and report:
@@ -258,6 +262,48 @@ def make_coworking(rng: np.random.Generator, staff: pd.DataFrame) -> pd.DataFram
     return pd.DataFrame(rows, columns=["source", "target"])
 
 
+WAVE2_SEED = 31177  # the second wave draws from its own generator: the first wave stays as it was
+MERGED = ("Larkmoor", "Quayside")
+MERGED_TEAM = "Larkmoor-Quayside"
+
+
+def make_wave2(staff: pd.DataFrame, clean: pd.DataFrame) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """The roster and advice ties of the second wave (see the module's docstring)."""
+    rng = np.random.default_rng(WAVE2_SEED)
+    # Leavers: a Stonewick nurse, an Alderbrook administrator and a Fernhollow nurse.
+    leavers = [staff[(staff.clinic == clinic) & (staff.role == role)].id.iloc[0]
+               for clinic, role in (("Stonewick", "nurse"), ("Alderbrook", "administrator"),
+                                    ("Fernhollow", "nurse"))]
+    roster = staff[~staff.id.isin(leavers)].copy()
+    joiners = pd.DataFrame([
+        {"id": "s62", "name": "Rhea Ormwick", "clinic": "Quayside", "role": "nurse",
+         "years_in_post": 0},
+        {"id": "s63", "name": "Tobias Fenoby", "clinic": "Larkmoor", "role": "administrator",
+         "years_in_post": 0}])
+    roster = pd.concat([roster, joiners], ignore_index=True)
+    roster["team"] = [MERGED_TEAM if c in MERGED else c for c in roster.clinic]
+    present = set(roster.id)
+    ties: dict[tuple[str, str], int] = {}
+    for row in clean.itertuples(index=False):
+        if row.source in present and row.target in present and rng.random() < 0.8:
+            ties[(row.source, row.target)] = int(min(12, max(1, row.times_per_month
+                                                             + rng.integers(-1, 2))))
+    merged = roster[roster.clinic.isin(MERGED)].set_index("id")
+    for ego, person in merged.iterrows():
+        other = merged[merged.clinic != person.clinic].index.to_numpy()
+        for alter in rng.choice(other, size=min(3, len(other)), replace=False):
+            ties.setdefault((str(ego), str(alter)), int(1 + rng.poisson(2)))
+    for joiner in joiners.id:
+        mates = merged.index[merged.index != joiner].to_numpy()
+        for alter in rng.choice(mates, size=4, replace=False):
+            ties.setdefault((joiner, str(alter)), int(1 + rng.poisson(2)))
+        for ego in rng.choice(mates, size=2, replace=False):
+            ties.setdefault((str(ego), joiner), 1)
+    advice = pd.DataFrame([(s, t, w) for (s, t), w in sorted(ties.items())],
+                          columns=["source", "target", "times_per_month"])
+    return roster.sort_values("id").reset_index(drop=True), advice
+
+
 def main() -> None:
     rng = np.random.default_rng(SEED)
     staff = make_staff(rng)
@@ -271,10 +317,14 @@ def main() -> None:
     staff.to_csv(DATA / "staff.csv", **options)
     advice.to_csv(DATA / "advice.csv", **options)
     coworking.to_csv(DATA / "coworking.csv", **options)
+    roster2, advice2 = make_wave2(staff, clean)
+    roster2.to_csv(DATA / "staff_wave2.csv", **options)
+    advice2.to_csv(DATA / "advice_wave2.csv", **options)
 
     print(f"staff.csv: {len(staff)} staff; advice isolates: {', '.join(isolates)}")
     print(f"advice.csv: {len(advice)} rows ({len(clean)} distinct clean ties)")
     print(f"coworking.csv: {len(coworking)} ties")
+    print(f"staff_wave2.csv: {len(roster2)} staff; advice_wave2.csv: {len(advice2)} ties")
     records = advice.to_dict("records")
     for kind, row in faults:
         lines = [i + 2 for i, r in enumerate(records)

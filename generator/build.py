@@ -18,9 +18,11 @@ from typing import TextIO
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
+from .analyse.compare import compare_series
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import NetworkConfig, StudyConfig, load_study
 from .draw import FigureSettings, draw_network
+from .draw.compare import draw_community_flow, draw_series_statistics
 from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
 from .errors import ConfigError, DataError, Finding, OutputError
@@ -35,11 +37,13 @@ from .publish import (
 )
 from .publish.archive import zip_time
 from .publish.lock import LockOwner, hold_study_lock
+from .publish.series import series_files, series_resources
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
+from .render.compare import SeriesInput, series_title
 from .render.node_view import node_view_limit
 from .render.site import PartnerCopy, render_notes
-from .render.site_map import ALL_DATA, DATAPACKAGE, explorer_file
+from .render.site_map import ALL_DATA, DATAPACKAGE, compare_figure, explorer_file
 from .render.theme import load_theme
 from .vocabulary import count_of
 
@@ -359,7 +363,17 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if cache is not None:
                 cache.store_files(keys[net.id], downloads)
         files.update(downloads)
-    files[DATAPACKAGE] = datapackage_json(analyses, title=study.title)
+    series = study_series(study, analyses, progress)
+    resources = []
+    by_id = {a.network_id: a for a in analyses}
+    for compared in series:
+        name = compared.comparison.series
+        files.update(series_files(compared.comparison, by_id))
+        resources += series_resources(compared.comparison, by_id)
+        for figure in compared.figures:
+            files[compare_figure(name, figure.name, "svg")] = figure.svg
+            files[compare_figure(name, figure.name, "png")] = figure.png
+    files[DATAPACKAGE] = datapackage_json(analyses, title=study.title, extra=resources)
     files[ALL_DATA] = all_data_zip(files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
 
     reuse = None
@@ -368,10 +382,31 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
         reuse.networks = shown
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
                         reuse=reuse, partner=partner,
-                        sizes={path: len(data) for path, data in files.items()})
+                        sizes={path: len(data) for path, data in files.items()}, series=series)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     return files
+
+
+def study_series(study: StudyConfig, analyses: list[NetworkAnalysis], progress: Progress
+                 ) -> list[SeriesInput]:
+    """Every series with two or more waves: its comparison and figures, in order of first use."""
+    members: dict[str, list[tuple[int, NetworkAnalysis]]] = {}
+    for net, analysis in zip(study.networks, analyses):
+        if net.series is not None and net.wave is not None:
+            members.setdefault(net.series, []).append((net.wave, analysis))
+    titles = {net.id: net.title for net in study.networks}
+    found = []
+    for name, waves in members.items():
+        if len(waves) < 2:
+            continue
+        comparison = compare_series(name, waves)
+        figures = [f for f in [draw_series_statistics(comparison, series_title(name))] if f]
+        figures += [draw_community_flow(flow, titles[flow.earlier], titles[flow.later])
+                    for flow in comparison.flows]
+        found.append(SeriesInput(comparison, tuple(figures)))
+        progress.stage("compare", f"{name}: {count_of(len(waves), 'wave')}")
+    return found
 
 
 def clean_study(project: Path | str) -> list[Path]:

@@ -150,3 +150,58 @@ def test_relation_matrices_follow_the_node_order_and_the_weights(tmp_path):
     matrix = relation_matrix(analysis, ["c", "b", "a"])
     assert matrix.tolist() == [[0, 0, 0], [1, 0, 0], [0, 3, 0]]
     assert tie_set(analysis) == {("a", "b"), ("b", "c")}
+
+
+def _two_wave_study(root):
+    from conftest import csv_text, write_study
+
+    first = csv_text(("source", "target"), [("a", "b"), ("b", "c"), ("c", "d"), ("d", "a"),
+                                            ("a", "c"), ("e", "f"), ("f", "g"), ("g", "e")])
+    # Built so the answers are known: kept a-b, b-c, c-d, e-f; dropped d-a, a-c, f-g, g-e;
+    # added d-h, h-e, c-e. g is in no tie of wave 2 (so it left) and h is new (it joined).
+    second = csv_text(("source", "target"), [("b", "a"), ("b", "c"), ("d", "c"), ("e", "f"),
+                                             ("d", "h"), ("h", "e"), ("c", "e")])
+    return write_study(root, networks=[
+        {"id": "one", "title": "Wave one", "edges": "data/one.csv", "series": "team", "wave": 1},
+        {"id": "two", "title": "Wave two", "edges": "data/two.csv", "series": "team", "wave": 2},
+    ], files={"data/one.csv": first, "data/two.csv": second})
+
+
+def test_a_series_of_two_waves_gets_its_page_files_and_resources(tmp_path):
+    import csv
+    import io
+    import json
+
+    from generator.build import build_study
+
+    site = build_study(_two_wave_study(tmp_path / "study")).output
+    page = (site / "compare/team.html").read_text("utf-8")
+    assert "<h2 id=\"step-one-two\">From Wave one to Wave two</h2>" in page
+    ties = list(csv.DictReader(io.StringIO((site / "files/series/team/ties.csv").read_text())))
+    assert ties == [{"from": "one", "to": "two", "kept": "4", "added": "3", "dropped": "4",
+                     "jaccard": str(4 / 11)}]
+    assert "Only in the later wave (joined)</dt><dd>h</dd>" in page
+    assert "Only in the earlier wave (left)</dt><dd>g</dd>" in page
+    statistics = list(csv.reader(io.StringIO(
+        (site / "files/series/team/statistics.csv").read_text())))
+    assert statistics[0] == ["statistic", "one", "two"]
+    assert dict((row[0], row[1:]) for row in statistics[1:])["edges"] == ["8", "7"]
+    nodes = list(csv.DictReader(io.StringIO((site / "files/series/team/nodes.csv").read_text())))
+    by_id = {row["id"]: row for row in nodes}
+    assert by_id["g"]["degree:two"] == "" and by_id["h"]["degree:one"] == ""  # absent, not 0
+    assert by_id["a"]["degree:one"] == "3" and by_id["a"]["degree:two"] == "1"
+    flow = list(csv.DictReader(io.StringIO(
+        (site / "files/series/team/community_flow.csv").read_text())))
+    assert sum(int(row["members"]) for row in flow) == 6  # a to f are in both waves
+    package = json.loads((site / "files/datapackage.json").read_text())
+    names = {r["name"] for r in package["resources"]}
+    assert {"series-team-statistics", "series-team-ties", "series-team-nodes",
+            "series-team-community-flow"} <= names
+    assert (site / "compare/team/statistics.svg").is_file()
+    assert (site / "compare/team/flow-one-two.svg").is_file()
+    index = (site / "index.html").read_text("utf-8")
+    assert 'href="compare/team.html"' in index  # in the navigation of every page
+    import frictionless
+
+    report = frictionless.validate(str(site / "files/datapackage.json"))
+    assert report.valid, report.flatten(["rowNumber", "fieldName", "message"])

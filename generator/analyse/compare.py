@@ -29,8 +29,10 @@ __all__ = [
     "NodeChange",
     "QapResult",
     "RegressionResult",
+    "SeriesComparison",
     "TieChange",
     "community_flow",
+    "compare_series",
     "difference_matrix",
     "jaccard",
     "mrqap",
@@ -336,3 +338,34 @@ def _fill(cells: np.ndarray, n: int, directed: bool) -> np.ndarray:
         matrix[upper] = cells
         matrix[(upper[1], upper[0])] = cells
     return matrix
+
+
+@dataclass(frozen=True)
+class SeriesComparison:
+    """The waves of one series in wave order, and what changed between each consecutive pair."""
+
+    series: str
+    networks: tuple[str, ...]  # ids in wave order
+    waves: tuple[int, ...]
+    statistics: tuple[tuple[str, tuple[float | None, ...]], ...]  # name, value per wave
+    ties: tuple[TieChange, ...]  # one per consecutive pair
+    nodes: tuple[NodeChange, ...]
+    flows: tuple[CommunityFlow, ...]
+
+
+def compare_series(series: str, waves: Sequence[tuple[int, NetworkAnalysis]]) -> SeriesComparison:
+    """``waves``: (wave number, analysis) of every network of the series, in any order. The
+    statistics are those of the first wave's statistics.csv, in its order, then any that only
+    later waves have; a statistic a wave lacks is None there."""
+    ordered = sorted(waves, key=lambda pair: pair[0])
+    analyses = [analysis for _, analysis in ordered]
+    names = list(dict.fromkeys(s.name for a in analyses for s in a.statistics))
+    statistics = tuple((name, tuple(a.statistic(name) for a in analyses)) for name in names)
+    pairs = list(zip(analyses, analyses[1:]))
+    return SeriesComparison(
+        series=series, networks=tuple(a.network_id for a in analyses),
+        waves=tuple(w for w, _ in ordered), statistics=statistics,
+        ties=tuple(tie_change(a, b) for a, b in pairs),
+        nodes=tuple(node_change(a, b) for a, b in pairs),
+        flows=tuple(community_flow(a, b) for a, b in pairs),
+    )

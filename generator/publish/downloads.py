@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import json
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from typing import Any
 
 import networkx as nx
@@ -124,8 +124,10 @@ def _fields(frame: pd.DataFrame, described: dict[str, str]) -> list[dict[str, st
             for c in frame.columns]
 
 
-def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
-    """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV."""
+def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
+                     extra: Sequence[dict[str, Any]] = ()) -> bytes:
+    """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV;
+    ``extra`` adds the resources of files beyond the networks' own (the series of waves)."""
     resources = []
     for a in analyses:
         nodes = node_table(a)
@@ -159,6 +161,7 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
         ]
         if a.significance.tests:
             resources.append(_significance_resource(a))
+    resources += list(extra)
     descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
                   "resources": resources}
     return (json.dumps(descriptor, indent=2, ensure_ascii=False) + "\n").encode("utf-8")

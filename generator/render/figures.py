@@ -8,7 +8,7 @@ from dataclasses import dataclass
 from ..draw.figure import Figure
 from .site_map import PageFrame, figure_file
 
-__all__ = ["FigureView", "figure_views"]
+__all__ = ["FigureView", "figure_view", "figure_views"]
 
 
 @dataclass(frozen=True)
@@ -52,18 +52,20 @@ def _svg_size(svg: bytes) -> tuple[int, int] | None:
     return round(width), round(height)
 
 
+def figure_view(frame: PageFrame, figure: Figure, svg_path: str, png_path: str) -> FigureView:
+    """How ``figure``, written at ``svg_path`` and ``png_path`` in the site, shows on a page."""
+    size = _svg_size(figure.svg)
+    return FigureView(
+        name=figure.name, title=figure.title, alt=figure.alt, caption=figure.caption,
+        svg_href=frame.href(svg_path), png_href=frame.href(png_path),
+        anchor=f"figure-{figure.name}",
+        width=size[0] if size else None,
+        height=size[1] if size else None,
+        wide=bool(size and size[0] / size[1] > _WIDE),
+    )
+
+
 def figure_views(frame: PageFrame, network_id: str, figures: list[Figure]
                  ) -> tuple[FigureView, ...]:
-    views = []
-    for f in figures:
-        size = _svg_size(f.svg)
-        views.append(FigureView(
-            name=f.name, title=f.title, alt=f.alt, caption=f.caption,
-            svg_href=frame.href(figure_file(network_id, f.name, "svg")),
-            png_href=frame.href(figure_file(network_id, f.name, "png")),
-            anchor=f"figure-{f.name}",
-            width=size[0] if size else None,
-            height=size[1] if size else None,
-            wide=bool(size and size[0] / size[1] > _WIDE),
-        ))
-    return tuple(views)
+    return tuple(figure_view(frame, f, figure_file(network_id, f.name, "svg"),
+                             figure_file(network_id, f.name, "png")) for f in figures)

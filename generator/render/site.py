@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 
 from markupsafe import Markup
@@ -12,6 +12,7 @@ from markupsafe import Markup
 from ..config import StudyConfig
 from ..errors import Finding
 from .checks import checks_context
+from .compare import SeriesInput, compare_context, series_title
 from .contents import with_contents
 from .downloads import downloads_context
 from .inputs import NetworkPageInput
@@ -31,6 +32,7 @@ from .site_map import (
     SHARING,
     PageFrame,
     SiteMap,
+    compare_page,
     explorer_file,
     network_page,
     node_view,
@@ -129,7 +131,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                 summary: str | None, build_info: dict[str, str],
                 link_dois: bool = True, reuse: PageReuse | None = None,
                 partner: PartnerCopy | None = None,
-                sizes: Mapping[str, int] | None = None) -> dict[str, bytes]:
+                sizes: Mapping[str, int] | None = None,
+                series: Sequence[SeriesInput] = ()) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -142,7 +145,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     ``partner`` makes a partner copy: every page says so in its header, and ``sharing.html``
     holds its terms and cautions.
     ``sizes`` maps the path of each download and figure to its size in bytes, for the downloads
-    page.
+    page. ``series`` holds the comparison of every series of two or more waves.
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -154,6 +157,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         notes=[(stem, note.title or _stem_title(stem)) for stem, note in rendered.items()],
         version=build_info.get("netfolio", ""),
         notice=partner.notice if partner is not None else "",
+        series=[(s.comparison.series, series_title(s.comparison.series)) for s in series],
     )
     terms = None
     if partner is not None and partner.terms is not None:
@@ -167,7 +171,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
     pages: list[tuple[str, str, object]] = []
     reused: dict[str, bytes] = {}
-    frame_key = _digest(site.study_title, site.networks, site.notes, site.version,
+    frame_key = _digest(site.study_title, site.networks, site.notes, site.series, site.version,
                         theme.digest(), link_dois, build_info.get("built", ""))
 
     def keep(path: str, *parts: object) -> bool:
@@ -203,6 +207,12 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             pages.append((path, "nodes.html", nodes_context(item, frame)))
         if item.ego is not None:
             pages += _node_views(item, networks, site, keep, every_network)
+
+    by_id = {item.id: item for item in networks}
+    for compared in series:
+        path = compare_page(compared.comparison.series)
+        pages.append((path, "compare.html", compare_context(
+            compared, by_id, site.frame(path, series_title(compared.comparison.series)))))
 
     if not keep(METHODS, every_network):
         pages.append((METHODS, "methods.html", methods_context(

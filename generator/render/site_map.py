@@ -8,8 +8,9 @@ from urllib.parse import quote
 
 __all__ = [
     "ALL_DATA", "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
-    "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "explorer_file", "figure_file", "network_file",
-    "network_page", "node_view", "nodes_page", "note_page", "page_href",
+    "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "compare_figure", "compare_page", "explorer_file",
+    "figure_file", "network_file",
+    "network_page", "node_view", "nodes_page", "note_page", "page_href", "series_file",
 ]
 
 INDEX = "index.html"
@@ -21,6 +22,18 @@ ALL_DATA = "files/all-data.zip"  # every table, GraphML file and the descriptor,
 MANIFEST = "manifest.json"
 SHARING = "sharing.html"  # only in a partner copy: its terms and what was protected
 EXPLORE_SCRIPT = "static/explore.js"  # the theme's explorable map
+
+
+def compare_page(series: str) -> str:
+    return f"compare/{series}.html"
+
+
+def compare_figure(series: str, name: str, ext: str) -> str:
+    return f"compare/{series}/{name}.{ext}"
+
+
+def series_file(series: str, name: str) -> str:
+    return f"files/series/{series}/{name}"
 
 
 def network_page(network_id: str) -> str:
@@ -97,9 +110,11 @@ class SiteMap:
     """The pages of one site, their titles, and the navigation built for each of them."""
 
     def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
-                 notes: list[tuple[str, str]], version: str, notice: str = ""):
+                 notes: list[tuple[str, str]], version: str, notice: str = "",
+                 series: list[tuple[str, str]] | None = None):
         self.study_title = study_title
         self.networks = networks  # (id, title) in study order
+        self.series = series or []  # (series, title) of every series with two or more waves
         self.notes = notes  # (stem, title), sorted by stem
         self.version = version
         self.notice = notice  # set for a partner copy, which also has the sharing page
@@ -114,6 +129,7 @@ class SiteMap:
 
         nav = [link("Overview", INDEX)]
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
+        nav += [link(series_title, compare_page(name)) for name, series_title in self.series]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
         if self.notice:
             nav.append(link("Sharing", SHARING))
