@@ -20,6 +20,7 @@ import igraph as ig
 import numpy as np
 import pandas as pd
 
+from ..vocabulary import CHANGE_MEASURES
 from . import NetworkAnalysis
 
 __all__ = [
@@ -106,7 +107,6 @@ class NodeChange:
     movers: dict[str, tuple[MoverRow, ...]]  # measure -> rows, by |change| then node order
 
 
-CHANGE_MEASURES = ("degree", "in_degree", "betweenness")
 
 
 def node_change(earlier: NetworkAnalysis, later: NetworkAnalysis,

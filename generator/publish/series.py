@@ -10,11 +10,11 @@ import pandas as pd
 
 from ..analyse import NetworkAnalysis
 from ..analyse.compare import SeriesComparison
-from ..vocabulary import exact_text
+from ..vocabulary import COMMUNITY, WHOLE_MEASURES, exact_text
 
 __all__ = ["SERIES_FILES", "series_files", "series_resources"]
 
-_WHOLE = ("community", "degree", "in_degree", "out_degree", "coreness")  # whole-number measures
+_WHOLE = (COMMUNITY, *WHOLE_MEASURES)  # written as whole numbers
 SERIES_FILES = ("statistics.csv", "ties.csv", "nodes.csv", "community_flow.csv")
 
 

@@ -10,12 +10,14 @@ from dataclasses import dataclass
 
 __all__ = [
     "COMMUNITY",
+    "CHANGE_MEASURES",
     "HISTOGRAM_MEASURES",
     "MEASURES",
     "MEASURE_NAMES",
     "OMISSION_REASONS",
     "PATH_MEASURES",
     "SIZE_MEASURES",
+    "WHOLE_MEASURES",
     "MeasureEntry",
     "measure",
     "omission_reason",
@@ -147,6 +149,9 @@ MEASURE_NAMES: tuple[str, ...] = tuple(_BY_NAME)
 PATH_MEASURES: tuple[str, ...] = tuple(m.name for m in MEASURES if m.path_based)
 HISTOGRAM_MEASURES: tuple[str, ...] = tuple(m.name for m in MEASURES if m.histogram)
 SIZE_MEASURES: tuple[str, ...] = tuple(m.name for m in MEASURES if m.sizes_nodes)
+# The measures whose change between waves the series page follows, node by node.
+CHANGE_MEASURES: tuple[str, ...] = ("degree", "in_degree", "betweenness")
+WHOLE_MEASURES: tuple[str, ...] = tuple(m.name for m in MEASURES if m.whole)
 
 
 def measure(name: str) -> MeasureEntry:
