@@ -8,7 +8,7 @@ from dataclasses import dataclass
 import igraph as ig
 import pandas as pd
 
-from ..ingest import natural_key
+from ..ingest.network import natural_key
 
 __all__ = ["GroupMixing", "MixingTable", "categorical_attributes", "ei_index", "mixing_table",
            "numeric_attributes"]

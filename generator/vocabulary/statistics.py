@@ -159,7 +159,7 @@ def _attribute_assortativity(r: Reading) -> str:
         return f"Ties show no clear tendency to join nodes {alike} or {unlike} (r = {shown})."
     side = alike if r.value > 0 else unlike
     return (f"r = {shown}: ties join nodes {side} more often than random mixing would. This was "
-            "not tested against chance, so no preference or avoidance is claimed.")
+            "not tested against chance, so it claims no tendency.")
 
 
 def _ei_index(r: Reading) -> str:
@@ -176,7 +176,7 @@ def _ei_index(r: Reading) -> str:
         return (f"Ties avoid nodes alike in {r.attribute}, crossing groups more often than chance "
                 f"would: E-I = {shown} is {null_clause(test)}.")
     return (f"E-I = {shown}: {inside} of the ties join nodes of the same {r.attribute}. This was "
-            "not tested against chance, so no preference or avoidance is claimed.")
+            "not tested against chance, so it claims no tendency.")
 
 
 def _modularity(r: Reading) -> str:
