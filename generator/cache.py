@@ -187,6 +187,7 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "significance": _significance_to_json(analysis.significance),
         "mixing": [{**_record(t), "per_group": [_record(g) for g in t.per_group]}
                    for t in analysis.mixing],
+        "listed_nodes": analysis.listed_nodes,
     }
 
 
@@ -226,6 +227,7 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
             **t, "groups": tuple(t["groups"]), "counts": tuple(tuple(r) for r in t["counts"]),
             "per_group": tuple(GroupMixing(**g) for g in t["per_group"])})
             for t in data["mixing"]),
+        listed_nodes=data["listed_nodes"],
     )
 
 

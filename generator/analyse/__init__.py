@@ -62,6 +62,7 @@ class NetworkAnalysis:
     versions: dict[str, str] = field(default_factory=dict)
     significance: SignificanceResult = NOT_REQUESTED  # tests against rewired networks
     mixing: tuple[MixingTable, ...] = ()  # one per categorical attribute, in column order
+    listed_nodes: int | None = None  # nodes in the node list; None when there is none
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -117,4 +118,5 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
             progress=progress),
         mixing=tuple(mixing_table(graph, attributes[column], column)
                      for column in categorical_attributes(attributes)),
+        listed_nodes=network.listed,
     )

@@ -68,6 +68,7 @@ class CleanNetwork:
     attributes: tuple[str, ...]
     checks: DataChecks
     files: tuple[Path, ...]
+    listed: int | None = None  # nodes in the node list; None when there is none
 
     @property
     def id(self) -> str:
@@ -605,7 +606,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                            count=len(isolates)))
     _check_display_settings(net, attribute_names, study)
     files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
-    return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files)
+    return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files,
+                        len(known) if net.nodes is not None else None)
 
 
 # Columns of nodes.csv that netfolio writes itself; a node attribute may not take these names.
