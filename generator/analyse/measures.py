@@ -1,6 +1,6 @@
 """Node measures: degree, strength, betweenness, closeness, harmonic, eigenvector, PageRank,
-coreness, clustering, constraint and effective size, each exactly as defined in the README (definitions and references of
-each live in ``generator.vocabulary.measures``)."""
+coreness, clustering, constraint and effective size, each exactly as defined in the README
+(definitions and references of each live in ``generator.vocabulary.measures``)."""
 
 from __future__ import annotations
 

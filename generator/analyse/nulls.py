@@ -295,7 +295,8 @@ def null_model_tests(graph: ig.Graph, *, weighted: bool, attributes: pd.DataFram
                      progress: Progress | None = None, workers: int | None = None
                      ) -> SignificanceResult:
     """Test transitivity, reciprocity (directed), degree assortativity, each attribute's
-    assortativity, each categorical attribute's E-I index and modularity against ``samples`` degree-preserving rewirings of ``graph``.
+    assortativity, each categorical attribute's E-I index and modularity against ``samples``
+    degree-preserving rewirings of ``graph``.
 
     Each rewired network (see ``rewired``) has its own seed from ``null_seeds(seed, samples)``;
     modularity on it comes from the same community method, resolution and number of runs as the

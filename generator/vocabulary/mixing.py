@@ -6,13 +6,14 @@ from __future__ import annotations
 import re
 from collections.abc import Iterable
 
-from .formatting import count, count_of, number, plural
+from .formatting import count, count_of, number
 
 __all__ = [
     "MIXING_REFERENCES",
     "attribute_form",
     "group_ei_reading",
     "isolates_sentence",
+    "mixing_csv_names",
     "mixing_file_stems",
     "mixing_method",
     "scatter_method",
@@ -34,6 +35,11 @@ def mixing_file_stems(attributes: Iterable[str]) -> dict[str, str]:
         taken.add(stem.lower())
         stems[attribute] = stem
     return stems
+
+
+def mixing_csv_names(attributes: Iterable[str]) -> dict[str, str]:
+    """The download of each attribute's mixing matrix: ``mixing-<attribute>.csv``."""
+    return {a: f"mixing-{stem}.csv" for a, stem in mixing_file_stems(attributes).items()}
 
 
 def attribute_form(*, numeric: bool, declared: bool) -> str:
@@ -92,7 +98,8 @@ def isolates_sentence(isolates: int, listed: int, *, listed_in_node_list: bool) 
     who = "node has" if isolates == 1 else "nodes have"
     return (f"{count(isolates)} of the {count(listed)} listed {who} no ties at all: "
             f"{'it may be a person' if isolates == 1 else 'they may be people'} who did not "
-            f"respond rather than {'a person' if isolates == 1 else 'people'} without ties. Nodes without ties are kept in the network: they count in n "
+            f"respond rather than {'a person' if isolates == 1 else 'people'} without ties. "
+            "Nodes without ties are kept in the network: they count in n "
             "(so in density, centralization and every normalisation), score 0 for degree, "
             "strength, betweenness, closeness, harmonic closeness, local clustering and coreness "
             "(and eigenvector, where it is reported), get only the random-jump share of "
