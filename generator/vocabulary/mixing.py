@@ -4,9 +4,15 @@ read in, the per-group E-I readings, the methods text and the sentence on nodes 
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable
+from collections.abc import Iterable, Sequence
+from typing import TYPE_CHECKING
+
+import pandas as pd
 
 from .formatting import count, count_of, number
+
+if TYPE_CHECKING:
+    from ..analyse import NetworkAnalysis
 
 __all__ = [
     "MIXING_REFERENCES",
@@ -16,6 +22,7 @@ __all__ = [
     "mixing_csv_names",
     "mixing_file_stems",
     "mixing_method",
+    "mixing_method_text",
     "scatter_method",
 ]
 
@@ -76,7 +83,45 @@ def mixing_method(*, directed: bool) -> str:
             "(E - I) / (E + I), with I the ties inside groups and E the ties between them, each "
             f"tie once: -1 when every tie stays inside its group, +1 when every tie crosses. "
             f"{group} The overall E-I index is tested against the rewired networks like the "
-            "other statistics; only then may a reading speak of a preference or an avoidance.")
+            "other statistics; a reading speaks of a preference or an avoidance only when that "
+            "test gives p below 0.05.")
+
+
+def mixing_method_text(analysis: NetworkAnalysis, *, categorical: Sequence[str],
+                       numeric: Sequence[str], isolates: str
+                       ) -> tuple[tuple[str, tuple[str, ...]], ...]:
+    """The methods page's account of attribute types, mixing, brokerage and nodes without
+    ties: short paragraphs, each with the keys of the references it cites."""
+    out: list[tuple[str, tuple[str, ...]]] = []
+    forms = []
+    for attribute in analysis.attributes:
+        is_numeric = bool(pd.api.types.is_numeric_dtype(analysis.nodes[attribute].dtype))
+        declared = attribute in categorical or attribute in numeric
+        forms.append(f"{attribute}: {attribute_form(numeric=is_numeric, declared=declared)}")
+    if forms:
+        out.append(("Each node attribute is read as categories or as numbers: as study.toml "
+                    "declares it ([[network]] categorical = [...] or numeric = [...]), else as "
+                    "numbers when every filled cell is a plainly written number. The type "
+                    "decides the form of its assortativity (Newman's nominal coefficient for "
+                    "categories, the numeric Pearson form for numbers), its tests against "
+                    "rewired networks and whether it gets a mixing matrix. Here: "
+                    + "; ".join(forms) + ".", ("newman2003",)))
+        if analysis.mixing:
+            out.append((mixing_method(directed=analysis.directed), ("krackhardt1988",)))
+        if len(forms) > len(analysis.mixing):
+            out.append((scatter_method(), ("newman2003",)))
+    out.append((
+        "Brokerage (constraint and effective_size in nodes.csv) is computed on the undirected "
+        "version, " + ("with tie strengths as weights (a reciprocated pair of a directed "
+                       "network adds its two strengths)" if analysis.weighted else
+                       "every tie counting 1") + ", exactly as networkx defines constraint and "
+        "effective_size with a weight. Effective size follows networkx's node-by-node "
+        "definition (m_jq divides j's tie to q by j's own strongest tie); networkx's faster "
+        "all-nodes path (taken when SciPy is installed) divides by the wrong node's strongest tie on weighted graphs, which "
+        "this implementation does not copy. Both are undefined for a node with no ties, and "
+        "left as empty cells in nodes.csv.", ("burt1992",)))
+    out.append((isolates, ()))
+    return tuple(out)
 
 
 def scatter_method() -> str:
