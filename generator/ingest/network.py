@@ -174,7 +174,7 @@ def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, 
                                    f"(attribute columns: {listed})", line=1, column=column,
                                    value=column))
     checks.raise_if_errors()
-    typed = attrs.copy()
+    typed: pd.DataFrame = attrs.copy()
     for column in net.categorical:
         typed[column] = raw[column].astype("string").str.strip().replace({"": pd.NA})
     for column in net.numeric:

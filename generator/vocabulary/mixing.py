@@ -117,9 +117,9 @@ def mixing_method_text(analysis: NetworkAnalysis, *, categorical: Sequence[str],
                        "every tie counting 1") + ", exactly as networkx defines constraint and "
         "effective_size with a weight. Effective size follows networkx's node-by-node "
         "definition (m_jq divides j's tie to q by j's own strongest tie); networkx's faster "
-        "all-nodes path (taken when SciPy is installed) divides by the wrong node's strongest tie on weighted graphs, which "
-        "this implementation does not copy. Both are undefined for a node with no ties, and "
-        "left as empty cells in nodes.csv.", ("burt1992",)))
+        "all-nodes path (taken when SciPy is installed) divides by the wrong node's strongest "
+        "tie on weighted graphs, which this implementation does not copy. Both are undefined "
+        "for a node with no ties, and left as empty cells in nodes.csv.", ("burt1992",)))
     out.append((isolates, ()))
     return tuple(out)
 
