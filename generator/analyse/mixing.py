@@ -10,8 +10,8 @@ import pandas as pd
 
 from ..ingest.network import natural_key
 
-__all__ = ["GroupMixing", "MixingTable", "categorical_attributes", "ei_index", "mixing_table",
-           "numeric_attributes"]
+__all__ = ["GroupMixing", "MixingTable", "categorical_attributes", "ei_index", "merge_groups",
+           "mixing_table", "numeric_attributes"]
 
 
 @dataclass(frozen=True)
@@ -117,6 +117,39 @@ def mixing_table(graph: ig.Graph, values: pd.Series, attribute: str) -> MixingTa
     return MixingTable(attribute, directed, groups, tuple(tuple(row) for row in counts),
                        tuple(per_group), internal, external, ei, why, left_out,
                        sum(1 for t in texts if t is None))
+
+
+def merge_groups(table: MixingTable, small: tuple[str, ...], name: str) -> MixingTable:
+    """The table with the groups in ``small`` merged into one group called ``name`` (last):
+    their rows and columns are added up, and each group's counts are taken from the merged
+    matrix, so ties between two merged groups count as inside the merged one. The overall
+    counts and E-I index stay those of the groups as measured."""
+    if not small:
+        return table
+    kept = [g for g in table.groups if g not in small]
+    groups = (*kept, name)
+    position = {g: (kept.index(g) if g in kept else len(kept)) for g in table.groups}
+    k = len(groups)
+    counts = [[0] * k for _ in range(k)]
+    for r, row in enumerate(table.counts):
+        for c, value in enumerate(row):
+            a, b = position[table.groups[r]], position[table.groups[c]]
+            if not table.directed and a == b and r != c:
+                value = value if r < c else 0  # a symmetric pair becomes one diagonal count
+            counts[a][b] += value
+    nodes = {g: 0 for g in groups}
+    for group in table.per_group:
+        nodes[groups[position[group.group]]] += group.nodes
+    per_group = []
+    for i, group in enumerate(groups):
+        out = sum(counts[i][c] for c in range(k) if c != i)
+        inward = sum(counts[r][i] for r in range(k) if r != i) if table.directed else 0
+        per_group.append(GroupMixing(group, nodes[group], counts[i][i], out + inward,
+                                     _ratio(out + inward, counts[i][i])))
+    return MixingTable(table.attribute, table.directed, groups,
+                       tuple(tuple(row) for row in counts), tuple(per_group), table.internal,
+                       table.external, table.ei_index, table.why, table.left_out_ties,
+                       table.left_out_nodes)
 
 
 def ei_index(graph: ig.Graph, values: pd.Series) -> float | None:
