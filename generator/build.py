@@ -25,13 +25,21 @@ from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
 from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
-from .publish import MARKER, check_output_folder, datapackage_json, network_files, write_site
+from .publish import (
+    MARKER,
+    all_data_zip,
+    check_output_folder,
+    datapackage_json,
+    network_files,
+    write_site,
+)
+from .publish.archive import zip_time
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.site import recover_interrupted_site
 from .render import NetworkPageInput, render_site
 from .render.node_view import node_view_limit
 from .render.site import PartnerCopy, render_notes
-from .render.site_map import explorer_file
+from .render.site_map import ALL_DATA, DATAPACKAGE, explorer_file
 from .render.theme import load_theme
 from .vocabulary import count_of
 
@@ -344,14 +352,6 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
 
-    reuse = None
-    if cache is not None:
-        reuse = cache.page_reuse
-        reuse.networks = shown
-    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
-                        reuse=reuse, partner=partner)
-    progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
-    files.update(pages)
     for net, analysis in zip(study.networks, analyses):
         downloads = cache.files(keys[net.id]) if cache is not None else None
         if downloads is None:
@@ -359,7 +359,18 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if cache is not None:
                 cache.store_files(keys[net.id], downloads)
         files.update(downloads)
-    files["files/datapackage.json"] = datapackage_json(analyses, title=study.title)
+    files[DATAPACKAGE] = datapackage_json(analyses, title=study.title)
+    files[ALL_DATA] = all_data_zip(files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
+
+    reuse = None
+    if cache is not None:
+        reuse = cache.page_reuse
+        reuse.networks = shown
+    pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
+                        reuse=reuse, partner=partner,
+                        sizes={path: len(data) for path, data in files.items()})
+    progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
+    files.update(pages)
     return files
 
 

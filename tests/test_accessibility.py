@@ -10,28 +10,18 @@ accessibility engine for automated Web UI testing"). Headless Chromium from the 
 from __future__ import annotations
 
 import os
-import shutil
 from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
-
-from generator.build import build_study
+from browsing import build_example, launch, require_chromium
 
 pytestmark = pytest.mark.browser
 
-CHROMIUM = Path("/usr/bin/chromium")
-if not CHROMIUM.exists() and os.environ.get("CI"):
-    raise RuntimeError("CI needs Chromium at /usr/bin/chromium for the browser tests")
-if not CHROMIUM.exists():
-    pytest.skip("needs Chromium at /usr/bin/chromium (apt-get install chromium)",
-                allow_module_level=True)
+require_chromium()
 sync_api = pytest.importorskip("playwright.sync_api")
 axe_module = pytest.importorskip("axe_playwright_python.sync_playwright")
 
-EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
-CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
-                 "--disable-component-update", "--no-first-run", "--disable-sync"]
 # One page of every kind the site has.
 PAGE_KINDS = {
     "front": "index.html",
@@ -51,10 +41,7 @@ SIDEWAYS_OK = ".table-scroll, .explorer-stage, pre"
 
 @pytest.fixture(scope="module")
 def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    work = tmp_path_factory.mktemp("a11y")
-    study = shutil.copytree(EXAMPLE, work / "example",
-                            ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
-    return build_study(study, output=work / "site").output
+    return build_example(tmp_path_factory.mktemp("a11y"))
 
 
 @pytest.fixture(scope="module")
@@ -68,7 +55,7 @@ def artifacts(tmp_path_factory: pytest.TempPathFactory) -> Path:
 @pytest.fixture(scope="module")
 def browser() -> Iterator[object]:
     with sync_api.sync_playwright() as playwright:
-        chromium = playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        chromium = launch(playwright)
         yield chromium
         chromium.close()
 
@@ -140,3 +127,30 @@ def test_no_page_scrolls_sideways_on_a_phone(site: Path, browser, artifacts: Pat
             assert errors == []
         finally:
             page.close()
+
+
+def test_the_node_table_keeps_its_header_and_first_column_in_view_and_says_it_scrolls(
+        site: Path, browser) -> None:
+    page, errors = _open(browser, site / PAGE_KINDS["nodes"], width=390, scheme="light")
+    try:
+        box = page.locator(".table-scroll.pinned")
+        assert page.locator(".scroll-hint").count() == 1  # wider than a phone: it says so
+        header = page.locator("#node-table thead th").first
+        first_cell = page.locator("#node-table tbody tr").nth(30).locator("th")
+        box.scroll_into_view_if_needed()
+        box.evaluate("box => { box.scrollTop = 600; box.scrollLeft = 400; }")
+        page.wait_for_timeout(100)
+        # Scrolled down inside its box, the header row sits at the top of the box.
+        assert abs(header.bounding_box()["y"] - box.bounding_box()["y"]) < 2
+        first_cell.scroll_into_view_if_needed()
+        box.evaluate("box => { box.scrollLeft = 400; }")
+        left = box.bounding_box()["x"]
+        assert abs(first_cell.bounding_box()["x"] - left) < 2  # the id column stays at the left
+        assert errors == []
+    finally:
+        page.close()
+    wide, _ = _open(browser, site / "checks.html", width=1440, scheme="light")
+    try:
+        assert wide.locator(".scroll-hint").count() == 0  # nothing to say when everything fits
+    finally:
+        wide.close()

@@ -8,32 +8,22 @@ is skipped.
 
 from __future__ import annotations
 
-import os
 import re
-import shutil
 from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
+from browsing import build_example, launch, require_chromium
 
 from generator.build import build_study
 
 pytestmark = pytest.mark.browser
 
-CHROMIUM = Path("/usr/bin/chromium")
-# CI installs the browser, so there a missing one is a failure, not a silent skip.
-if not CHROMIUM.exists() and os.environ.get("CI"):
-    raise RuntimeError("CI needs Chromium at /usr/bin/chromium for the browser tests")
-if not CHROMIUM.exists():
-    pytest.skip("needs Chromium at /usr/bin/chromium (apt-get install chromium)",
-                allow_module_level=True)
+require_chromium()
 sync_api = pytest.importorskip("playwright.sync_api",
                                reason="needs Playwright for Python (pip install -e '.[test]')")
 
-EXAMPLE = Path(__file__).resolve().parents[1] / "example_project"
 THEME_CSS = Path(__file__).resolve().parents[1] / "themes" / "default" / "static" / "site.css"
-CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
-                 "--disable-component-update", "--no-first-run", "--disable-sync"]
 PAGES = ["index.html", "networks/advice/index.html", "networks/advice/nodes.html",
          "methods.html", "checks.html", "downloads.html", "notes/methods.html"]
 # The four spellings of a javascript: link from the issue, each hidden from a plain text match.
@@ -92,10 +82,7 @@ def _write_study(root: Path, note: str, *, allow_html: bool = False) -> Path:
 
 @pytest.fixture(scope="module")
 def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    work = tmp_path_factory.mktemp("browser")
-    study = shutil.copytree(EXAMPLE, work / "example",
-                            ignore=shutil.ignore_patterns("output", ".netfolio-*", "bundles"))
-    return build_study(study, output=work / "site").output
+    return build_example(tmp_path_factory.mktemp("browser"))
 
 
 @pytest.fixture(scope="module")
@@ -115,7 +102,7 @@ def note_sites(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
 @pytest.fixture(scope="module")
 def browser() -> Iterator[object]:
     with sync_api.sync_playwright() as playwright:
-        chromium = playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+        chromium = launch(playwright)
         yield chromium
         chromium.close()
 
@@ -412,3 +399,89 @@ def test_the_header_search_says_when_nothing_is_found_and_keys_move_through_resu
     assert focused.endswith("#statistic-density")
     tab.page.keyboard.press("Enter")
     tab.page.wait_for_url("**#statistic-density")
+
+
+@pytest.fixture(scope="module")
+def large_site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The example's co-working network built as if it were above the explorable map's node
+    limit (the limit lowered to 20): the map shows its communities."""
+    from generator.draw import explorer as explorer_module
+
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(explorer_module, "EXPLORER_MAX_NODES", 20)
+        return build_example(tmp_path_factory.mktemp("large"))
+
+
+def test_a_network_above_the_limit_is_explored_by_its_communities(large_site: Path, tab: _Tab
+                                                                   ) -> None:
+    import pandas as pd
+    section = _explorer(tab, large_site, "coworking")
+    nodes = pd.read_csv(large_site / "files/coworking/nodes.csv")
+    edges = pd.read_csv(large_site / "files/coworking/edges.csv", dtype=str)
+    communities = nodes["community"].nunique()
+    assert section.is_visible() and "shows the" in section.locator(".notice").inner_text()
+    assert tab.page.locator("#explore circle.explorer-node").count() == communities
+    member = dict(zip(nodes["id"].astype(str), nodes["community"]))
+    pairs = {tuple(sorted((member[s], member[t]))) for s, t in zip(edges["source"], edges["target"])
+             if member[s] != member[t]}
+    assert tab.page.locator("#explore line.explorer-tie").count() == len(pairs)
+    _node_circle(tab, 0).hover(force=True)
+    tab.page.wait_for_timeout(100)
+    details = tab.page.locator("#explore .explorer-details").inner_text()
+    assert "Community 1" in details
+    assert f"Members\n{(nodes['community'] == 1).sum()}" in details
+    assert tab.console == [] and tab.violations() == []
+
+
+# Two fingers moving apart over the map, then one finger dragging it, as touch pointer events.
+PINCH_AND_DRAG = """
+() => {
+  const svg = document.querySelector("#explore svg");
+  const box = svg.getBoundingClientRect();
+  const cx = box.left + box.width / 2, cy = box.top + box.height / 2;
+  const send = (type, id, x, y) => svg.dispatchEvent(new PointerEvent(type, {
+    pointerId: id, pointerType: "touch", clientX: x, clientY: y, bubbles: true, isPrimary: id === 1}));
+  send("pointerdown", 1, cx - 20, cy);
+  send("pointerdown", 2, cx + 20, cy);
+  for (let step = 1; step <= 10; step++) {
+    send("pointermove", 1, cx - 20 - 4 * step, cy);
+    send("pointermove", 2, cx + 20 + 4 * step, cy);
+  }
+  send("pointerup", 1, cx - 60, cy);
+  send("pointerup", 2, cx + 60, cy);
+}
+"""
+DRAG = """
+() => {
+  const svg = document.querySelector("#explore svg");
+  const box = svg.getBoundingClientRect();
+  const cx = box.left + box.width / 2, cy = box.top + box.height / 2;
+  const send = (type, x, y) => svg.dispatchEvent(new PointerEvent(type, {
+    pointerId: 7, pointerType: "touch", clientX: x, clientY: y, bubbles: true, isPrimary: true}));
+  send("pointerdown", cx, cy);
+  for (let step = 1; step <= 5; step++) send("pointermove", cx + 10 * step, cy + 4 * step);
+  send("pointerup", cx + 50, cy + 20);
+}
+"""
+
+
+def test_the_map_zooms_with_two_fingers_and_moves_with_one(site: Path, browser) -> None:
+    context = browser.new_context(viewport={"width": 390, "height": 844}, has_touch=True,
+                                  is_mobile=True)
+    page = context.new_page()
+    try:
+        page.goto((site / "networks/advice/index.html").as_uri())
+        page.locator("#explore").scroll_into_view_if_needed()
+        assert page.locator("#explore").get_attribute("data-scale") == "1.000"
+        page.evaluate(PINCH_AND_DRAG)
+        page.wait_for_timeout(150)  # the view is redrawn on the next animation frame
+        scale = float(page.locator("#explore").get_attribute("data-scale"))
+        assert scale > 2.0  # the fingers ended 120 px apart from 40: about three times closer
+        view = page.locator("#explore g.explorer-view")
+        before = view.get_attribute("transform")
+        page.evaluate(DRAG)
+        page.wait_for_timeout(100)
+        assert view.get_attribute("transform") != before
+        assert page.locator("#explore").get_attribute("data-scale") == f"{scale:.3f}"
+    finally:
+        context.close()

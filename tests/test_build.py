@@ -200,3 +200,38 @@ def test_every_network_of_the_example_is_tested_against_200_rewired_networks(sit
     assert "Ties strongly prefer nodes alike in clinic" in page and "below 0.05" in page
     methods = (site / "methods.html").read_text("utf-8")
     assert "p = (k + 1) / (N + 1)" in methods and "doi:10.1126/science.1065103" in methods
+
+
+def test_all_data_zip_holds_every_table_graphml_and_the_descriptor_and_validates(
+        site: Path, tmp_path: Path) -> None:
+    import zipfile
+
+    files = site_files(site)
+    expected = {path.removeprefix("files/"): data for path, data in files.items()
+                if path.startswith("files/") and path.endswith((".csv", ".graphml", ".json"))}
+    with zipfile.ZipFile(site / "files/all-data.zip") as archive:
+        inside = {name: archive.read(name) for name in archive.namelist()}
+        stamps = {entry.date_time for entry in archive.infolist()}
+    assert inside == expected and "datapackage.json" in inside
+    assert {"advice/nodes.csv", "coworking/network.graphml"} <= set(inside)
+    assert stamps == {(1980, 1, 1, 0, 0, 0)}  # no clock time: the same results, the same bytes
+    # Unzipped anywhere, the descriptor's paths hold: the Frictionless validator reads every
+    # table against its schema (Frictionless Data, "Data Package" standard, v1).
+    for name, data in inside.items():
+        (tmp_path / name).parent.mkdir(parents=True, exist_ok=True)
+        (tmp_path / name).write_bytes(data)
+    import frictionless
+
+    report = frictionless.validate(str(tmp_path / "datapackage.json"))
+    assert report.valid, report.flatten(["rowNumber", "fieldName", "message"])
+
+
+def test_the_downloads_page_gives_each_file_its_size(site: Path) -> None:
+    from generator.vocabulary import file_size
+
+    page = (site / "downloads.html").read_text("utf-8")
+    for path in ("files/advice/nodes.csv", "files/coworking/edges.csv", "files/all-data.zip",
+                 "files/datapackage.json", "networks/advice/figures/map.png"):
+        size = file_size((site / path).stat().st_size)
+        assert re.search(rf'<code>{re.escape(path)}</code></a> <span class="file-size">'
+                         rf'{re.escape(size)}</span>', page), path

@@ -31,6 +31,7 @@ from generator.pack.codes import KEY_FILE, node_codes
 from generator.pack.leaks import Secret, SecretMatcher, find_leaks, png_text
 from generator.pack.protect import Protection, protect_analysis, redact_finding
 from generator.pack.wording import BundleFacts, readme_text
+from generator.publish.archive import zip_bytes
 
 # ---------------------------------------------------------------------------------------------
 # An invented study whose ids, names and e-mail addresses are distinctive strings, so that any
@@ -374,6 +375,17 @@ def test_scan_finds_values_in_any_case_and_as_html_escapes_them():
              "c.json": b'{"x": "Ann O\'Brien"}', "d.txt": b"nothing here"}
     assert [(leak.file, leak.kind) for leak in find_leaks(files, matcher)] == [
         ("a.html", "node label"), ("b.csv", "node id"), ("c.json", "node label")]
+
+
+def test_scan_opens_zips_in_the_bundle_so_a_deflated_table_hides_nothing():
+    matcher = SecretMatcher([Secret("node label", "Tavrenna Quill")])
+    inner = zip_bytes({"nodes.csv": b"id,label\n1,Tavrenna Quill\n"}, date_time=zip_time(None))
+    outer = zip_bytes({"deeper/all.zip": inner}, date_time=zip_time(None))
+    assert b"Tavrenna" not in inner  # deflated: a plain search of the bytes misses it
+    files = {"files/all-data.zip": inner, "x.zip": outer, "y.html": b"<p>clean</p>"}
+    assert [(leak.file, leak.kind) for leak in find_leaks(files, matcher)] == [
+        ("files/all-data.zip/nodes.csv", "node label"),
+        ("x.zip/deeper/all.zip/nodes.csv", "node label")]
 
 
 def test_scan_matches_whole_values_only_and_skips_short_ones():

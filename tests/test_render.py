@@ -172,7 +172,7 @@ def _rows(html: str, table_class: str) -> list[str]:
 
 
 def _downloads(items: list[NetworkPageInput]) -> set[str]:
-    paths = {"files/datapackage.json", "manifest.json"}
+    paths = {"files/datapackage.json", "files/all-data.zip", "manifest.json"}
     for item in items:
         paths |= {f"files/{item.id}/{name}" for name in
                   ("nodes.csv", "edges.csv", "statistics.csv", "network.graphml")}

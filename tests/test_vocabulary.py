@@ -19,6 +19,7 @@ from generator.vocabulary import (
     Reading,
     count_of,
     exact_text,
+    file_size,
     list_in_words,
     measure,
     node_name,
@@ -56,6 +57,14 @@ def test_numbers_read_with_three_significant_digits_and_never_an_exponent(value,
 ])
 def test_shares_never_round_a_partial_share_to_none_or_all(value, text):
     assert share(value) == text
+
+
+@pytest.mark.parametrize(("size", "text"), [
+    (0, "0 bytes"), (1, "1 byte"), (999, "999 bytes"), (1000, "1.0 kB"), (4_249, "4.2 kB"),
+    (999_949, "999.9 kB"), (999_999, "1.0 MB"), (3_400_000, "3.4 MB"), (2_500_000_000, "2.5 GB")])
+def test_file_sizes_read_in_decimal_units(size, text):
+    # Decimal prefixes (1 kB = 1000 bytes), as the SI defines them: common practice in file managers.
+    assert file_size(size) == text
 
 
 def test_counts_plurals_lists_and_names():

@@ -138,8 +138,8 @@ def merge_groups(table: MixingTable, small: tuple[str, ...], name: str) -> Mixin
                 value = value if r < c else 0  # a symmetric pair becomes one diagonal count
             counts[a][b] += value
     nodes = {g: 0 for g in groups}
-    for group in table.per_group:
-        nodes[groups[position[group.group]]] += group.nodes
+    for measured in table.per_group:
+        nodes[groups[position[measured.group]]] += measured.nodes
     per_group = []
     for i, group in enumerate(groups):
         out = sum(counts[i][c] for c in range(k) if c != i)

@@ -9,9 +9,7 @@ replace it and never a file netfolio did not write.
 
 from __future__ import annotations
 
-import datetime as dt
 import hashlib
-import posixpath
 import re
 import unicodedata
 import zipfile
@@ -19,6 +17,7 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from ..publish import manifest_json
+from ..publish.archive import ZipTime, safe_member, zip_bytes, zip_time
 
 __all__ = ["BUNDLE_COMMENT", "MANIFEST", "README", "SUMS", "bundle_files", "is_netfolio_bundle",
            "sha256sums", "title_slug", "write_zip", "zip_time"]
@@ -27,9 +26,6 @@ BUNDLE_COMMENT = b"netfolio partner bundle"
 README = "README.txt"
 MANIFEST = "manifest.json"
 SUMS = "SHA256SUMS"
-_EARLIEST = (1980, 1, 1, 0, 0, 0)  # the zip format counts from 1980
-_FILE_MODE = 0o100644  # a regular file, rw-r--r--
-_UNIX = 3  # "made by" a Unix system, so unzip reads the mode
 
 
 def title_slug(title: str) -> str:
@@ -38,16 +34,6 @@ def title_slug(title: str) -> str:
     plain = unicodedata.normalize("NFKD", title).encode("ascii", "ignore").decode("ascii")
     slug = re.sub(r"[^a-z0-9]+", "-", plain.lower()).strip("-")
     return slug[:80].rstrip("-") or "study"
-
-
-def zip_time(epoch: str | None) -> tuple[int, int, int, int, int, int]:
-    """The timestamp of every entry: ``SOURCE_DATE_EPOCH`` (UTC) if it is a whole number of
-    seconds from 1980 on, else 1980-01-01 00:00."""
-    if epoch is None or not epoch.strip().isdigit():
-        return _EARLIEST
-    when = dt.datetime.fromtimestamp(int(epoch), tz=dt.timezone.utc)
-    stamp = (when.year, when.month, when.day, when.hour, when.minute, when.second)
-    return max(stamp, _EARLIEST)
 
 
 def sha256sums(files: Mapping[str, bytes]) -> bytes:
@@ -74,26 +60,12 @@ def bundle_files(site: Mapping[str, bytes], readme: str) -> dict[str, bytes]:
     return dict(sorted(files.items()))
 
 
-def _safe(path: str) -> bool:
-    parts = path.split("/")
-    return (bool(path) and not path.startswith("/") and "\\" not in path
-            and ".." not in parts and "" not in parts and posixpath.normpath(path) == path)
-
-
-def write_zip(target: Path, files: Mapping[str, bytes], *,
-              date_time: tuple[int, int, int, int, int, int]) -> None:
+def write_zip(target: Path, files: Mapping[str, bytes], *, date_time: ZipTime) -> None:
     """Write ``files`` (relative posix path -> bytes) to ``target`` as a deterministic zip."""
     for path in files:
-        if not _safe(path):
+        if not safe_member(path):
             raise ValueError(f"refusing to pack {path!r}: not a plain relative path")
-    with zipfile.ZipFile(target, "w") as archive:
-        for path, data in sorted(files.items()):
-            entry = zipfile.ZipInfo(path, date_time=date_time)
-            entry.external_attr = _FILE_MODE << 16
-            entry.create_system = _UNIX
-            entry.compress_type = zipfile.ZIP_DEFLATED
-            archive.writestr(entry, data, compresslevel=9)
-        archive.comment = BUNDLE_COMMENT
+    target.write_bytes(zip_bytes(files, date_time=date_time, comment=BUNDLE_COMMENT))
 
 
 def is_netfolio_bundle(path: Path) -> bool:

@@ -10,12 +10,14 @@ its text chunks only (tEXt, zTXt and iTXt), where image metadata lives.
 from __future__ import annotations
 
 import html
+import io
 import json
 import re
 import struct
 import unicodedata
+import zipfile
 import zlib
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass
 
 __all__ = ["MIN_LENGTH", "Leak", "Secret", "SecretMatcher", "find_leaks", "png_text",
@@ -156,8 +158,20 @@ def readable_text(path: str, data: bytes) -> str:
     return data.decode("utf-8", errors="replace")
 
 
+def _unpacked(files: Mapping[str, bytes]) -> Iterator[tuple[str, bytes]]:
+    """Every file, and every file inside a zip among them (as ``outer.zip/inner``): deflated,
+    a zip's members would hide their values from the scan."""
+    for path, data in files.items():
+        if path.endswith(".zip") and data.startswith(b"PK"):
+            with zipfile.ZipFile(io.BytesIO(data)) as archive:
+                inner = {f"{path}/{name}": archive.read(name) for name in archive.namelist()}
+            yield from _unpacked(inner)
+        else:
+            yield path, data
+
+
 def find_leaks(files: Mapping[str, bytes], matcher: SecretMatcher) -> list[Leak]:
-    """Every (file, kind of value) the files hold, sorted by file and kind."""
-    leaks = {Leak(path, kind) for path, data in files.items()
+    """Every (file, kind of value) the files hold, zips opened, sorted by file and kind."""
+    leaks = {Leak(path, kind) for path, data in _unpacked(files)
              for kind in matcher.kinds_in(readable_text(path, data))}
     return sorted(leaks)

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import math
+from collections.abc import Mapping
 from typing import Any
 
 import networkx as nx
@@ -20,8 +21,10 @@ from ..vocabulary import (
     measure,
 )
 from ..vocabulary.mixing import mixing_csv_names
+from .archive import ZipTime, zip_bytes
 
-__all__ = ["datapackage_json", "edges_csv", "graphml", "mixing_csv", "mixing_files",
+__all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "datapackage_json", "edges_csv", "graphml",
+           "mixing_csv", "mixing_files",
            "network_files", "nodes_csv", "significance_csv", "statistics_csv"]
 
 
@@ -207,3 +210,14 @@ def network_files(analysis: NetworkAnalysis) -> dict[str, bytes]:
     for file, table in mixing_files(analysis).items():
         files[prefix + file] = mixing_csv(table)
     return files
+
+
+ALL_DATA_SUFFIXES = (".csv", ".graphml", "datapackage.json")
+
+
+def all_data_zip(files: Mapping[str, bytes], *, date_time: ZipTime) -> bytes:
+    """Every CSV and GraphML file under ``files/`` and the Data Package descriptor, as one
+    deterministic zip laid out as ``files/`` is (so the descriptor's paths hold inside it)."""
+    members = {path.removeprefix("files/"): data for path, data in files.items()
+               if path.startswith("files/") and path.endswith(ALL_DATA_SUFFIXES)}
+    return zip_bytes(members, date_time=date_time)

@@ -2,13 +2,22 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
 
-from ..vocabulary import COMMUNITY, PATH_MEASURES, SIGNIFICANCE_COLUMNS, count, count_of, measure
+from ..vocabulary import (
+    COMMUNITY,
+    PATH_MEASURES,
+    SIGNIFICANCE_COLUMNS,
+    count,
+    count_of,
+    file_size,
+    measure,
+)
 from ..vocabulary.mixing import mixing_csv_names
 from .describe import weight_reading
 from .inputs import NetworkPageInput
-from .site_map import DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
+from .site_map import ALL_DATA, DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
 
 __all__ = ["ColumnInfo", "DownloadFile", "DownloadsPage", "FigureDownload", "NetworkDownloads",
            "downloads_context", "network_downloads", "node_columns_described"]
@@ -26,6 +35,7 @@ class DownloadFile:
     href: str
     description: str
     columns: tuple[ColumnInfo, ...] = ()
+    size: str = ""  # for reading ("4.2 kB"); empty when not known as the page is written
 
 
 @dataclass(frozen=True)
@@ -35,6 +45,8 @@ class FigureDownload:
     svg_href: str
     png_path: str
     png_href: str
+    svg_size: str = ""
+    png_size: str = ""
 
 
 @dataclass(frozen=True)
@@ -84,11 +96,18 @@ def _edge_columns(item: NetworkPageInput) -> tuple[ColumnInfo, ...]:
     return tuple(ends)
 
 
-def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str | None
-                      ) -> NetworkDownloads:
+def _size(sizes: Mapping[str, int], path: str) -> str:
+    return file_size(sizes[path]) if path in sizes else ""
+
+
+def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str | None,
+                      sizes: Mapping[str, int] | None = None) -> NetworkDownloads:
+    """``sizes`` maps a file's path under the site root to its size in bytes."""
+    known = sizes or {}
+
     def entry(name: str, description: str, columns: tuple[ColumnInfo, ...] = ()) -> DownloadFile:
         path = network_file(item.id, name)
-        return DownloadFile(path, frame.href(path), description, columns)
+        return DownloadFile(path, frame.href(path), description, columns, _size(known, path))
 
     files: tuple[DownloadFile, ...] = (
         entry("nodes.csv", "One row per node: id, label, node attributes, then every measure at "
@@ -126,6 +145,8 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
         svg_href=frame.href(figure_file(item.id, f.name, "svg")),
         png_path=figure_file(item.id, f.name, "png"),
         png_href=frame.href(figure_file(item.id, f.name, "png")),
+        svg_size=_size(known, figure_file(item.id, f.name, "svg")),
+        png_size=_size(known, figure_file(item.id, f.name, "png")),
     ) for f in item.figures)
     return NetworkDownloads(item.id, item.title, f"network-{item.id}", files, figures)
 
@@ -140,17 +161,24 @@ class DownloadsPage:
 
 
 def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
-                      node_files: dict[str, str]) -> DownloadsPage:
-    """``node_files`` maps a network id to its node list as the user wrote the path."""
+                      node_files: dict[str, str], sizes: Mapping[str, int] | None = None
+                      ) -> DownloadsPage:
+    """``node_files`` maps a network id to its node list as the user wrote the path; ``sizes``
+    a file's path to its size in bytes (the manifest's own size is not known yet)."""
+    known = sizes or {}
     return DownloadsPage(
         page=frame,
-        networks=tuple(network_downloads(item, frame, node_files.get(item.id))
+        networks=tuple(network_downloads(item, frame, node_files.get(item.id), known)
                        for item in networks),
         site_files=(
+            DownloadFile(ALL_DATA, frame.href(ALL_DATA),
+                         "Every table (CSV) and GraphML file above with the Data Package "
+                         "descriptor, in one zip laid out as the files/ folder is. The same "
+                         "results give the same zip, byte for byte.", size=_size(known, ALL_DATA)),
             DownloadFile(DATAPACKAGE, frame.href(DATAPACKAGE),
                          "Frictionless Data Package descriptor (an open standard): every CSV file "
                          "above with its columns and their types, so other tools can check and "
-                         "load the tables."),
+                         "load the tables.", size=_size(known, DATAPACKAGE)),
             DownloadFile(MANIFEST, frame.href(MANIFEST),
                          "Every file of this site with its size in bytes and SHA-256 checksum, to "
                          "confirm a copy is complete and unchanged."),

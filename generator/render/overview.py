@@ -6,12 +6,24 @@ from dataclasses import dataclass
 
 from markupsafe import Markup
 
-from ..vocabulary import count, number
+from ..analyse import NetworkAnalysis
+from ..vocabulary import count, node_name, number
+from ..vocabulary.findings import (
+    bridge_finding,
+    community_finding,
+    reciprocity_finding,
+    transitivity_finding,
+    within_group_finding,
+)
 from .describe import network_kind
 from .inputs import NetworkPageInput
-from .site_map import PageFrame, network_page, nodes_page
+from .site_map import PageFrame, figure_file, network_page, nodes_page
 
-__all__ = ["CAUTIONS", "GlanceRow", "OverviewPage", "glance_rows", "overview_context"]
+__all__ = ["CAUTIONS", "GlanceRow", "NetworkCard", "OverviewPage", "glance_rows", "key_findings",
+           "network_cards", "overview_context"]
+
+MAP_FIGURE = "map"  # the static map each network page shows; the front page shows it small
+MAX_FINDINGS = 5
 
 CAUTIONS: tuple[str, ...] = (
     "Network data about people is personal data: names, attributes and ties identify people, and "
@@ -58,6 +70,73 @@ def glance_rows(frame: PageFrame, networks: list[NetworkPageInput]) -> tuple[Gla
     return tuple(rows)
 
 
+def _ei_attribute(item: NetworkPageInput) -> str | None:
+    """The attribute whose ties-within-groups finding the front page gives: the one the figures
+    colour by if it has an E-I index, else the first that has one."""
+    names = [s.name.partition(":")[2] for s in item.analysis.statistics
+             if s.name.startswith("ei_index:") and s.value is not None]
+    if item.config.color_by in names:
+        return item.config.color_by
+    return names[0] if names else None
+
+
+def _bridge(analysis: NetworkAnalysis) -> str | None:
+    if "betweenness" not in analysis.measures or analysis.measures["betweenness"].isna().all():
+        return None
+    ranked = analysis.measures["betweenness"].dropna().sort_values(ascending=False, kind="stable")
+    top = str(ranked.index[0])
+    runner_up = float(ranked.iloc[1]) if len(ranked) > 1 else None
+    name = node_name(str(analysis.nodes.at[top, "label"]), top)
+    return bridge_finding(name, float(ranked.iloc[0]), runner_up)
+
+
+def key_findings(item: NetworkPageInput) -> tuple[str, ...]:
+    """Three to five sentences from the results: the largest community, how much ties stay
+    within a group, who bridges the most, then reciprocity and clustering."""
+    analysis = item.analysis
+    findings: list[str | None] = [community_finding(analysis.communities.sizes, len(analysis.nodes))]
+    attribute = _ei_attribute(item)
+    if attribute is not None:
+        ei_index = analysis.statistic(f"ei_index:{attribute}")
+        assert ei_index is not None
+        findings.append(within_group_finding(
+            attribute, ei_index, analysis.significance.test(f"assortativity:{attribute}")))
+    findings.append(_bridge(analysis))
+    reciprocity = analysis.statistic("reciprocity")
+    if analysis.directed and reciprocity is not None:
+        findings.append(reciprocity_finding(reciprocity))
+    transitivity = analysis.statistic("transitivity")
+    if transitivity is not None:
+        findings.append(transitivity_finding(transitivity, analysis.significance.test("transitivity")))
+    return tuple(f for f in findings if f is not None)[:MAX_FINDINGS]
+
+
+@dataclass(frozen=True)
+class NetworkCard:
+    """One network on the front page: its map, small, and its key findings."""
+
+    title: str
+    href: str
+    thumbnail: str | None  # the static map's SVG, when the network has one
+    thumbnail_alt: str
+    findings: tuple[str, ...]
+
+
+def network_cards(frame: PageFrame, networks: list[NetworkPageInput]) -> tuple[NetworkCard, ...]:
+    cards = []
+    for item in networks:
+        drawn = any(f.name == MAP_FIGURE for f in item.figures)
+        cards.append(NetworkCard(
+            title=item.title,
+            href=frame.href(network_page(item.id)),
+            thumbnail=frame.href(figure_file(item.id, MAP_FIGURE, "svg")) if drawn else None,
+            thumbnail_alt=(f"Small map of the {item.title} network; its page has the map at full "
+                           "size, to explore"),
+            findings=key_findings(item),
+        ))
+    return tuple(cards)
+
+
 @dataclass(frozen=True)
 class OverviewPage:
     """Everything ``index.html`` shows."""
@@ -65,6 +144,7 @@ class OverviewPage:
     page: PageFrame
     summary: Markup | None
     networks: tuple[GlanceRow, ...]
+    cards: tuple[NetworkCard, ...]
     cautions: tuple[str, ...]
     built: str
 
@@ -72,4 +152,4 @@ class OverviewPage:
 def overview_context(frame: PageFrame, networks: list[NetworkPageInput], *,
                      summary: Markup | None, built: str) -> OverviewPage:
     return OverviewPage(page=frame, summary=summary, networks=glance_rows(frame, networks),
-                        cautions=CAUTIONS, built=built)
+                        cards=network_cards(frame, networks), cautions=CAUTIONS, built=built)

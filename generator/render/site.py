@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 
 from markupsafe import Markup
@@ -12,6 +12,7 @@ from markupsafe import Markup
 from ..config import StudyConfig
 from ..errors import Finding
 from .checks import checks_context
+from .contents import with_contents
 from .downloads import downloads_context
 from .inputs import NetworkPageInput
 from .methods import methods_context
@@ -127,7 +128,8 @@ def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None)
 def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
                 summary: str | None, build_info: dict[str, str],
                 link_dois: bool = True, reuse: PageReuse | None = None,
-                partner: PartnerCopy | None = None) -> dict[str, bytes]:
+                partner: PartnerCopy | None = None,
+                sizes: Mapping[str, int] | None = None) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -139,6 +141,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     the pages the notes appear on.
     ``partner`` makes a partner copy: every page says so in its header, and ``sharing.html``
     holds its terms and cautions.
+    ``sizes`` maps the path of each download and figure to its size in bytes, for the downloads
+    page.
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -210,9 +214,10 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         site.frame(CHECKS, "Data checks"), networks, notes=note_findings)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
-    if not keep(DOWNLOADS, every_network):
+    if not keep(DOWNLOADS, every_network, sorted((sizes or {}).items())):
         pages.append((DOWNLOADS, "downloads.html",
-                      downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files)))
+                      downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files,
+                                        sizes)))
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)
@@ -224,7 +229,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             protections=partner.protections, cautions=partner.cautions,
             contact=partner.contact)))
 
-    output = {path: theme.render(template, context).encode("utf-8")
+    output = {path: with_contents(theme.render(template, context)).encode("utf-8")
               for path, template, context in pages}
     if reuse is not None:
         reuse.pages = {keys[path]: data for path, data in {**output, **reused}.items()

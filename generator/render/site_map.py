@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from urllib.parse import quote
 
 __all__ = [
-    "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
+    "ALL_DATA", "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
     "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "explorer_file", "figure_file", "network_file",
     "network_page", "node_view", "nodes_page", "note_page", "page_href",
 ]
@@ -17,6 +17,7 @@ METHODS = "methods.html"
 CHECKS = "checks.html"
 DOWNLOADS = "downloads.html"
 DATAPACKAGE = "files/datapackage.json"
+ALL_DATA = "files/all-data.zip"  # every table, GraphML file and the descriptor, in one zip
 MANIFEST = "manifest.json"
 SHARING = "sharing.html"  # only in a partner copy: its terms and what was protected
 EXPLORE_SCRIPT = "static/explore.js"  # the theme's explorable map

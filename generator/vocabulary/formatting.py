@@ -16,6 +16,7 @@ __all__ = [
     "count",
     "count_of",
     "exact_text",
+    "file_size",
     "is_missing",
     "list_in_words",
     "node_name",
@@ -154,3 +155,14 @@ def ordinal(rank: int) -> str:
     """1st, 2nd, 3rd, 4th, 11th, 12th, 13th, 21st, 1,001st."""
     suffix = "th" if 10 <= rank % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(rank % 10, "th")
     return f"{rank:,}{suffix}"
+
+
+def file_size(size: int) -> str:
+    """A file's size for reading, in decimal units as file managers show them (common practice):
+    ``812 bytes``, ``4.2 kB``, ``1.3 MB``."""
+    if size < 1000:
+        return count_of(size, "byte")
+    for unit, scale in (("kB", 1e3), ("MB", 1e6), ("GB", 1e9)):
+        if size < scale * 999.95 or unit == "GB":
+            return f"{size / scale:.1f} {unit}"
+    raise AssertionError("unreachable")
