@@ -378,3 +378,28 @@ def test_example_study_shows_mixing_and_brokerage_for_both_networks(tmp_path):
         page = (root / "output" / "networks" / network / "index.html").read_text()
         assert 'id="mixing"' in page and "E-I index of each clinic group" in page
         assert "listed nodes have no ties at all" in page or "at least one tie" in page
+
+
+def test_repeated_or_empty_declarations_are_refused_with_the_key(tmp_path, capsys):
+    for keys, piece in (({"categorical": ["team", "team"]}, "names 'team' twice"),
+                        ({"numeric": [""]}, "must be a list of node-list column names")):
+        root = edge_study(tmp_path / piece[:5], "source,target\na,b\n",
+                          nodes="id,team\na,X\nb,Y\n", **keys)
+        assert main(["build", str(root), "--quiet"]) == 1
+        err = capsys.readouterr().err
+        assert piece in err and "network[1]." in err and "Traceback" not in err
+
+
+def test_merging_small_groups_adds_their_rows_and_columns(tmp_path):
+    # Hand count on the undirected example above: merging X into "other" (with Y kept) leaves
+    # the matrix as it was but renamed; merging both puts every valued tie on one diagonal cell
+    # (5 ties), while the overall E-I stays that of the groups as measured.
+    from generator.analyse.mixing import merge_groups
+
+    edges = "source,target\na,b\nb,c\na,d\nd,e\nc,e\ne,f\n"
+    table = _table(analyse(load_network(edge_study(tmp_path, edges, nodes=TEAM_NODES))))
+    one = merge_groups(table, ("X",), "other")
+    assert one.groups == ("Y", "other") and one.counts == ((1, 2), (2, 2))
+    both = merge_groups(table, ("X", "Y"), "other")
+    assert both.groups == ("other",) and both.counts == ((5,),)
+    assert both.per_group[0].nodes == 5 and both.ei_index == pytest.approx(-0.2, **EXACT)
