@@ -30,6 +30,8 @@ import pandas as pd
 from . import __version__
 from .analyse import (
     CommunityResult,
+    GroupMixing,
+    MixingTable,
     NetworkAnalysis,
     NullTest,
     Omission,
@@ -57,7 +59,7 @@ __all__ = [
 T = TypeVar("T")
 CACHE_DIR = ".netfolio-cache"
 FORMAT = "netfolio-cache"
-FORMAT_VERSION = 2
+FORMAT_VERSION = 3
 # The Cache Directory Tagging Specification's tag: backup tools skip the folder, and clean knows
 # netfolio made it.
 CACHE_TAG = "CACHEDIR.TAG"
@@ -183,6 +185,9 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "findings": [_record(f) for f in analysis.findings],
         "versions": [[k, v] for k, v in analysis.versions.items()],
         "significance": _significance_to_json(analysis.significance),
+        "mixing": [{**_record(t), "per_group": [_record(g) for g in t.per_group]}
+                   for t in analysis.mixing],
+        "listed_nodes": analysis.listed_nodes,
     }
 
 
@@ -218,6 +223,11 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
         findings=tuple(Finding(**f) for f in data["findings"]),
         versions={str(k): str(v) for k, v in data["versions"]},
         significance=_significance_from_json(data["significance"]),
+        mixing=tuple(MixingTable(**{
+            **t, "groups": tuple(t["groups"]), "counts": tuple(tuple(r) for r in t["counts"]),
+            "per_group": tuple(GroupMixing(**g) for g in t["per_group"])})
+            for t in data["mixing"]),
+        listed_nodes=data["listed_nodes"],
     )
 
 

@@ -76,7 +76,7 @@ NetworkSource = EdgeListSource | MatrixSource
 NETWORK_KEYS = (
     "id", "title", "edges", "matrix", "nodes", "node_id", "label", "source", "target", "directed",
     "weight", "weight_means", "duplicates", "two_mode", "modes", "series", "wave", "color_by",
-    "size_by", "delimiter", "decimal",
+    "size_by", "delimiter", "decimal", "categorical", "numeric",
 )
 
 
@@ -101,6 +101,10 @@ class NetworkConfig:
     size_by: str | None = None
     delimiter: str = ","  # between values in every CSV file of this network
     decimal: str = "."  # the decimal mark of numbers (weights, numeric attributes)
+    # Node attributes declared as categories or as numbers; the others are typed by their values
+    # (a column of plainly written numbers is numeric).
+    categorical: tuple[str, ...] = ()
+    numeric: tuple[str, ...] = ()
 
     @property
     def data_file(self) -> Path:
@@ -334,6 +338,17 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     if size_by is not None and edges is not None and weight is None and measure(size_by).weighted_only:
         raise ConfigError(f"'{size_by}' needs a weight column; this network is unweighted, use "
                           f"'{size_by.replace('strength', 'degree')}'", key=f"{dotted}.size_by")
+    categorical = _column_list(t, "categorical")
+    numeric = _column_list(t, "numeric")
+    both = [c for c in categorical if c in numeric]
+    if both:
+        raise ConfigError(f"'{both[0]}' is declared both categorical and numeric; an attribute "
+                          "has one type: remove it from one of the two lists",
+                          key=f"{dotted}.numeric")
+    if (categorical or numeric) and nodes is None:
+        raise ConfigError("'categorical' and 'numeric' declare node-list columns, but this "
+                          "network has no 'nodes' key", key=f"{dotted}.categorical" if categorical
+                          else f"{dotted}.numeric")
     source_of_ties: NetworkSource
     if edges is not None:
         source_of_ties = EdgeListSource(path=_existing_file(root, edges, f"{dotted}.edges"),
@@ -358,7 +373,23 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         size_by=size_by,
         delimiter=delimiter,
         decimal=decimal,
+        categorical=categorical,
+        numeric=numeric,
     )
+
+
+def _column_list(t: _Table, name: str) -> tuple[str, ...]:
+    """A list of node-list column names, each named once."""
+    values = t.get(name, list, [])
+    key = f"{t.dotted}.{name}"
+    if not all(isinstance(v, str) and v.strip() for v in values):
+        bad = next(v for v in values if not (isinstance(v, str) and v.strip()))
+        raise ConfigError(f"must be a list of node-list column names, got {_describe(bad)}",
+                          key=key)
+    repeated = [v for i, v in enumerate(values) if v in values[:i]]
+    if repeated:
+        raise ConfigError(f"names '{repeated[0]}' twice", key=key)
+    return tuple(values)
 
 
 _TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site")

@@ -181,7 +181,8 @@ def test_a_colour_change_redraws_without_analysing(tmp_path):
     (root / "study.toml").write_text(toml.replace('weight = "w"', 'weight = "w"\ncolor_by = "team"'))
     lines = _build(root, tmp_path / "site")
     assert "analyse  net: cached" in lines
-    assert "draw     net: 8 figures" in lines or "draw     net: 7 figures" in lines
+    # The figures as before plus the heatmap of team's mixing matrix and the scatter of years.
+    assert "draw     net: 10 figures" in lines or "draw     net: 9 figures" in lines
 
 
 def test_fresh_ignores_the_cache_and_writes_it_anew(tmp_path):

@@ -37,10 +37,16 @@ from generator.vocabulary import list_in_words, number
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 SVG_NS = "{http://www.w3.org/2000/svg}"
+# Then a heatmap per categorical attribute (club, team) and a scatter per numeric one (age).
+MIXING_NAMES = ["mixing-club", "mixing-team", "scatter-age"]
 UNDIRECTED_NAMES = ["map", "degree", "betweenness", "closeness", "harmonic", "eigenvector",
-                    "pagerank", "communities"]
+                    "pagerank", "communities", *MIXING_NAMES]
 DIRECTED_NAMES = ["map", "degree", "betweenness", "closeness", "harmonic", "pagerank",
-                  "communities"]
+                  "communities", *MIXING_NAMES]
+
+
+def _named(figures, name):
+    return next(f for f in figures if f.name == name)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -220,7 +226,7 @@ def test_directed_map_alt_text_says_arrows_and_weights(directed, directed_figure
 
 
 def test_every_alt_text_mentions_the_number_of_nodes_it_describes(undirected_figures):
-    for figure in undirected_figures[:-1]:
+    for figure in undirected_figures[:UNDIRECTED_NAMES.index("communities")]:
         assert "34 nodes" in figure.alt, figure.name
 
 
@@ -252,7 +258,7 @@ def test_directed_degree_figure_has_in_and_out_degree_panels(directed_figures):
 
 
 def test_community_alt_lists_the_sizes_largest_first(undirected, undirected_figures):
-    alt = undirected_figures[-1].alt
+    alt = _named(undirected_figures, "communities").alt
     sizes = list(undirected.communities.sizes)
     assert sizes == sorted(sizes, reverse=True)
     assert f"sizes of {len(sizes)} communities, largest first: " in alt
@@ -395,7 +401,8 @@ def test_tie_width_grows_mildly_with_strength():
 
 def test_community_caption_writes_the_method_as_every_page_does(undirected_figures):
     # One capitalisation of method names: "Leiden", never "leiden".
-    assert undirected_figures[-1].caption.startswith("The Leiden method (best of")
+    assert _named(undirected_figures, "communities").caption.startswith(
+        "The Leiden method (best of")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -417,7 +424,8 @@ def test_each_test_against_chance_gets_its_figure_after_the_others(tested):
     assert names[:len(UNDIRECTED_NAMES)] == UNDIRECTED_NAMES
     assert names[len(UNDIRECTED_NAMES):] == [
         "null-transitivity", "null-degree-assortativity", "null-assortativity-club",
-        "null-assortativity-age", "null-assortativity-team", "null-modularity"]
+        "null-assortativity-age", "null-assortativity-team", "null-ei-index-club",
+        "null-ei-index-team", "null-modularity"]
     assert figure_digests(draw_network(tested)) == figure_digests(figures)
 
 

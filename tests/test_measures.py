@@ -78,7 +78,8 @@ def expected_columns(directed: bool, weighted: bool, eigenvector: bool) -> list[
     if weighted:
         columns += ["strength"] + (["in_strength", "out_strength"] if directed else [])
     columns += ["betweenness", "closeness", "harmonic"] + (["eigenvector"] if eigenvector else [])
-    return columns + ["pagerank", "coreness", "clustering", "community"]
+    return columns + ["pagerank", "coreness", "clustering", "constraint", "effective_size",
+                      "community"]
 
 
 MEASURE_COLUMNS = ("degree", "in_degree", "out_degree", "strength", "in_strength", "out_strength",

@@ -241,7 +241,7 @@ def test_the_observed_values_are_the_statistics_the_analysis_reports(tmp_path):
     analysis = _analysed(tmp_path, graph, 6, attributes=("club", "tenure"))
     tested = {t.statistic: t.observed for t in analysis.significance.tests}
     assert list(tested) == ["transitivity", "degree_assortativity", "assortativity:club",
-                            "assortativity:tenure", "modularity"]
+                            "assortativity:tenure", "ei_index:club", "modularity"]
     for name, observed in tested.items():
         assert observed == analysis.statistic(name), name
     # Nominal assortativity of the club, 0.717531 (computed with networkx 3.6).

@@ -169,7 +169,8 @@ def test_every_node_keeps_the_numbers_of_the_full_report(packed, tmp_path):
     # Every statistic as in the full report (the assortativity of clinic too, computed over the
     # original groups), but those of the removed columns.
     assert files["files/outreach/statistics.csv"].decode().splitlines() == [
-        line for line in full_statistics if not line.startswith("assortativity:email,")]
+        line for line in full_statistics
+        if not line.startswith(("assortativity:email,", "ei_index:email,"))]
 
 
 def test_a_group_below_min_group_appears_in_no_table_or_figure(packed):
@@ -262,7 +263,7 @@ def test_datapackage_validates_with_frictionless_against_the_csvs(packed, tmp_pa
         archive.extractall(tmp_path)
     report = frictionless.validate(str(tmp_path / "files/datapackage.json"))
     assert report.valid, report.flatten(["rowNumber", "fieldName", "message"])
-    assert report.stats["tasks"] == 3  # nodes, edges, statistics
+    assert report.stats["tasks"] == 5  # nodes, edges, statistics, mixing of clinic and role
     package = json.loads((tmp_path / "files/datapackage.json").read_text())
     assert all(r["schema"]["missingValues"] == [""] for r in package["resources"])
     # The check can fail: a word in a number column is reported.
@@ -449,7 +450,8 @@ def test_protected_analysis_keeps_each_nodes_measures_community_and_position(tmp
         assert protected.communities.membership[j] == analysis.communities.membership[i]
         assert protected.measures.iloc[j].equals(analysis.measures.iloc[i])
     assert protected.statistics == tuple(s for s in analysis.statistics
-                                         if s.name != "assortativity:email")
+                                         if s.name not in ("assortativity:email",
+                                                           "ei_index:email"))
 
 
 def test_a_finding_keeps_file_line_and_count_but_not_its_values():

@@ -25,6 +25,7 @@ from generator.config import (
 from generator.draw.figure import Figure
 from generator.errors import ConfigError, DataError
 from generator.ingest import read_network
+from generator.publish.downloads import mixing_files
 from generator.render import CAUTIONS, NetworkPageInput, render_site
 from generator.render.describe import references_of, stability_reading
 from generator.render.network_page import statistic_rows, top_tables
@@ -175,6 +176,7 @@ def _downloads(items: list[NetworkPageInput]) -> set[str]:
     for item in items:
         paths |= {f"files/{item.id}/{name}" for name in
                   ("nodes.csv", "edges.csv", "statistics.csv", "network.graphml")}
+        paths |= {f"files/{item.id}/{name}" for name in mixing_files(item.analysis)}
         paths |= {f"networks/{item.id}/figures/{f.name}.{ext}" for f in item.figures
                   for ext in ("svg", "png")}
     return paths

@@ -6,6 +6,7 @@ from __future__ import annotations
 import itertools
 
 import networkx as nx
+import pandas as pd
 import pytest
 from conftest import (
     CROSS_CHECK_CASES,
@@ -104,8 +105,11 @@ def test_statistics_are_listed_in_a_fixed_order(case, request):
              + ["largest_component_share", "diameter", "average_path_length",
                 "degree_assortativity"]
              + [f"assortativity:{a}" for a in analysis.attributes]
-             + ["modularity", "communities", "degree_centralization",
-                "betweenness_centralization"])
+             + [f"ei_index:{a}" for a in analysis.attributes
+                if not pd.api.types.is_numeric_dtype(analysis.nodes[a].dtype)]
+             + ["modularity", "communities", "degree_centralization"]
+             + (["in_degree_centralization", "out_degree_centralization"] if directed else [])
+             + ["betweenness_centralization"])
     assert [s.name for s in analysis.statistics] == names
 
 

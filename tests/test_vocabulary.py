@@ -192,8 +192,8 @@ def test_degree_assortativity_reading_bands(value, phrase):
 
 def test_attribute_assortativity_reading_names_the_attribute_and_its_kind():
     assert _read("assortativity:clinic", 0.72, attribute="clinic") == (
-        "Ties lean strongly towards joining nodes of the same clinic (r = 0.72); this is not "
-        "tested against chance.")
+        "r = 0.72: ties join nodes of the same clinic more often than random mixing would. This "
+        "was not tested against chance, so it claims no tendency.")
     assert _read("assortativity:years", -0.06, attribute="years", numeric=True) == (
         "Ties show no clear tendency to join nodes with similar years or with different years "
         "(r = -0.06).")

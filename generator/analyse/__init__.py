@@ -14,12 +14,15 @@ from .communities import CommunityResult, find_communities
 from .graph import build_graph, tie_strengths, undirected_version
 from .layout import network_layout
 from .measures import Omission, PathSampling, node_measures
+from .mixing import GroupMixing, MixingTable, categorical_attributes, mixing_table
 from .nulls import NOT_REQUESTED, NullTest, SignificanceResult, null_model_tests
 from .provenance import library_versions
 from .statistics import Statistic, network_statistics
 
 __all__ = [
     "CommunityResult",
+    "GroupMixing",
+    "MixingTable",
     "NetworkAnalysis",
     "NullTest",
     "Omission",
@@ -58,6 +61,8 @@ class NetworkAnalysis:
     findings: tuple[Finding, ...]  # the data checks of ingest, passed on for the checks page
     versions: dict[str, str] = field(default_factory=dict)
     significance: SignificanceResult = NOT_REQUESTED  # tests against rewired networks
+    mixing: tuple[MixingTable, ...] = ()  # one per categorical attribute, in column order
+    listed_nodes: int | None = None  # nodes in the node list; None when there is none
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -84,8 +89,9 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                              weighted=weighted)
     table = node.table.copy()
     table["community"] = list(found.membership)
+    attributes = network.nodes[list(network.attributes)]
     stats = network_statistics(graph, weighted=weighted, betweenness=list(table["betweenness"]),
-                               attributes=network.nodes[list(network.attributes)],
+                               attributes=attributes,
                                modularity=found.modularity, communities=found.count)
     return NetworkAnalysis(
         network_id=network.id,
@@ -110,4 +116,7 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
             method=communities.method, resolution=communities.resolution, runs=communities.runs,
             samples=significance.null_samples if significance else 0, seed=seed,
             progress=progress),
+        mixing=tuple(mixing_table(graph, attributes[column], column)
+                     for column in categorical_attributes(attributes)),
+        listed_nodes=network.listed,
     )

@@ -1,6 +1,6 @@
 """Node measures: degree, strength, betweenness, closeness, harmonic, eigenvector, PageRank,
-coreness and clustering, each exactly as defined in the README (definitions and references of
-each live in ``generator.vocabulary.measures``)."""
+coreness, clustering, constraint and effective size, each exactly as defined in the README
+(definitions and references of each live in ``generator.vocabulary.measures``)."""
 
 from __future__ import annotations
 
@@ -14,6 +14,7 @@ import numpy as np
 import pandas as pd
 
 from ..vocabulary import measure
+from .brokerage import burt_brokerage
 from .graph import undirected_version
 from .seeding import seeded_igraph
 
@@ -157,6 +158,7 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
     undirected = undirected_version(graph)
     columns["coreness"] = undirected.coreness()
     columns["clustering"] = undirected.transitivity_local_undirected(mode="zero")
+    columns["constraint"], columns["effective_size"] = burt_brokerage(undirected, weighted=weighted)
 
     table = pd.DataFrame(columns, index=pd.Index(graph.vs["name"], name="id"))
     for name in table.columns:

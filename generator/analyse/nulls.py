@@ -20,6 +20,7 @@ import pandas as pd
 
 from .communities import find_communities
 from .graph import undirected_version
+from .mixing import categorical_attributes, ei_index
 from .seeding import seeded_igraph
 from .statistics import _assortativity
 
@@ -36,9 +37,9 @@ __all__ = [
 
 SWAPS_PER_TIE = 10  # rewiring trials per tie: 10 x m, igraph's default and common practice
 # The statistics tested, in statistics.csv order; "assortativity" stands for every
-# assortativity:<attribute> row.
+# assortativity:<attribute> row, "ei_index" for every ei_index:<attribute> row.
 TESTED_STATISTICS = ("transitivity", "reciprocity", "degree_assortativity", "assortativity",
-                     "modularity")
+                     "ei_index", "modularity")
 # Null values within this (relative) distance of the observed one count as equal to it, so that
 # the same partition scored over ties listed in another order is not "more extreme".
 _TOLERANCE = 1e-12
@@ -169,6 +170,8 @@ def _values(graph: ig.Graph, job: _Job, community_seed: int) -> tuple[float | No
             found = find_communities(undirected, method=job.method, resolution=job.resolution,
                                      runs=job.runs, seed=community_seed, weighted=job.weighted)
             out.append(_defined(found.modularity))
+        elif name.startswith("ei_index:"):
+            out.append(ei_index(graph, job.attributes[name.partition(":")[2]]))
         else:
             column = name.partition(":")[2]
             out.append(_assortativity(graph, job.attributes[column], name).value)
@@ -292,7 +295,8 @@ def null_model_tests(graph: ig.Graph, *, weighted: bool, attributes: pd.DataFram
                      progress: Progress | None = None, workers: int | None = None
                      ) -> SignificanceResult:
     """Test transitivity, reciprocity (directed), degree assortativity, each attribute's
-    assortativity and modularity against ``samples`` degree-preserving rewirings of ``graph``.
+    assortativity, each categorical attribute's E-I index and modularity against ``samples``
+    degree-preserving rewirings of ``graph``.
 
     Each rewired network (see ``rewired``) has its own seed from ``null_seeds(seed, samples)``;
     modularity on it comes from the same community method, resolution and number of runs as the
@@ -309,6 +313,7 @@ def null_model_tests(graph: ig.Graph, *, weighted: bool, attributes: pd.DataFram
         return SignificanceResult(samples, seed, SWAPS_PER_TIE, weighted, (), "no_ties")
     names = [n for n in TESTED_STATISTICS[:3] if n != "reciprocity" or graph.is_directed()]
     names += [f"assortativity:{column}" for column in attributes.columns]
+    names += [f"ei_index:{column}" for column in categorical_attributes(attributes)]
     names.append("modularity")
     job = _Job(graph, weighted, attributes, tuple(names), method, resolution, runs)
     observed = _values(graph, job, seed)  # modularity: the partition the analysis reports

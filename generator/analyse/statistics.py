@@ -11,6 +11,7 @@ import igraph as ig
 import pandas as pd
 
 from .graph import undirected_version
+from .mixing import categorical_attributes, mixing_table
 
 __all__ = ["Statistic", "network_statistics"]
 
@@ -53,6 +54,28 @@ def _assortativity(graph: ig.Graph, values: pd.Series, name: str) -> Statistic:
                                            directed=graph.is_directed())
     value = _defined(result)
     return Statistic(name, value, None if value is not None else "no_variance", left_out)
+
+
+def _directed_degree_centralization(graph: ig.Graph) -> list[Statistic]:
+    """Freeman's centralization of in-degree and of out-degree: sum(max - d) / (n-1)^2.
+
+    (n-1)^2 is the largest possible sum, reached by a star whose ties all point to (or all
+    leave) the centre; ties are counted as in the in_degree and out_degree columns.
+
+    References: Freeman, L. C.: Centrality in social networks: conceptual clarification. Social
+    Networks 1(3):215-239, 1979. doi:10.1016/0378-8733(78)90021-7
+    """
+    n = graph.vcount()
+    if n < 2:
+        return [Statistic(f"{mode}_degree_centralization", None, "fewer_than_two_nodes")
+                for mode in ("in", "out")]
+    stats = []
+    for mode in ("in", "out"):
+        degrees = graph.degree(mode=mode)
+        top = max(degrees)
+        stats.append(Statistic(f"{mode}_degree_centralization",
+                               sum(top - d for d in degrees) / (n - 1) ** 2))
+    return stats
 
 
 def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[float],
@@ -102,6 +125,10 @@ def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[flo
                            "no_ties" if not m else "constant_degrees"))
     for column in attributes.columns:
         stats.append(_assortativity(graph, attributes[column], f"assortativity:{column}"))
+    for column in categorical_attributes(attributes):
+        mixing = mixing_table(graph, attributes[column], column)
+        stats.append(Statistic(f"ei_index:{column}", mixing.ei_index, mixing.why,
+                               mixing.left_out_nodes))
     stats.append(Statistic("modularity", modularity, None if modularity is not None else
                            "no_ties"))
     stats.append(Statistic("communities", communities))
@@ -110,10 +137,14 @@ def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[flo
         top = max(degrees)
         stats.append(Statistic("degree_centralization",
                                sum(top - d for d in degrees) / ((n - 1) * (n - 2))))
+    else:
+        stats.append(Statistic("degree_centralization", None, "below_three_nodes"))
+    if directed:
+        stats += _directed_degree_centralization(graph)
+    if n >= 3:
         top_b = max(betweenness)
         stats.append(Statistic("betweenness_centralization",
                                sum(top_b - b for b in betweenness) / (n - 1)))
     else:
-        stats += [Statistic("degree_centralization", None, "below_three_nodes"),
-                  Statistic("betweenness_centralization", None, "below_three_nodes")]
+        stats.append(Statistic("betweenness_centralization", None, "below_three_nodes"))
     return stats

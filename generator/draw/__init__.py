@@ -11,6 +11,7 @@ from ..vocabulary import HISTOGRAM_MEASURES
 from .community_sizes import draw_communities
 from .distributions import draw_centrality, draw_degree
 from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
+from .mixing import draw_mixing
 from .network_map import draw_map
 from .node_encoding import colour_nodes
 from .null_models import draw_null_tests
@@ -23,7 +24,8 @@ def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_S
     """Every figure of one network, in page order: ``map``, ``degree``, one histogram per
     centrality measure the analysis holds (betweenness, closeness, harmonic, eigenvector,
     pagerank; a measure left out by the analysis is left out here), then ``communities``, then
-    one ``null-<statistic>`` per test against rewired networks.
+    a ``mixing-<attribute>`` heatmap per categorical attribute and a ``scatter-<attribute>`` per
+    numeric one, then one ``null-<statistic>`` per test against rewired networks.
 
     The same analysis gives byte-identical SVG and PNG in any process: figures live on their own
     Agg canvases (no pyplot state), the style is applied in an ``rc_context``, the SVG hash salt
@@ -38,5 +40,6 @@ def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_S
     figures += [draw_centrality(analysis, measure) for measure in HISTOGRAM_MEASURES
                 if measure in analysis.measures.columns]
     figures.append(draw_communities(analysis, colours))
+    figures += draw_mixing(analysis)
     figures += draw_null_tests(analysis)
     return figures

@@ -9,7 +9,7 @@ import numpy as np
 from matplotlib.ticker import MaxNLocator
 
 from ..analyse import NetworkAnalysis, NullTest
-from ..vocabulary import count_of, null_reading, null_subject, number
+from ..vocabulary import count_of, null_reading, null_subject, null_subject_inline, number
 from .figure import Figure
 from .style import BAR_COLOUR, INK, OKABE_ITO, drawing_style, figure_bytes, new_chart, quiet_axes
 
@@ -55,7 +55,7 @@ def draw_null_test(analysis: NetworkAnalysis, test: NullTest, name: str) -> Figu
     and a dashed one the rewired networks' mean."""
     values = np.array(test.nulls, dtype=float)
     subject = null_subject(test.statistic)
-    lower = subject[0].lower() + subject[1:]  # the first word is ours; the attribute stays as written
+    lower = null_subject_inline(test.statistic)  # the attribute stays as written
     title = f"{analysis.title}: {lower} against {count_of(test.samples, 'rewired network')}"
     bars, axis = _span(values, test.observed)
     with drawing_style():

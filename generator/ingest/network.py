@@ -68,6 +68,7 @@ class CleanNetwork:
     attributes: tuple[str, ...]
     checks: DataChecks
     files: tuple[Path, ...]
+    listed: int | None = None  # nodes in the node list; None when there is none
 
     @property
     def id(self) -> str:
@@ -155,6 +156,48 @@ def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
             typed[column] = text
     result: pd.DataFrame = pd.DataFrame(typed, index=frame.index)
     return result
+
+
+def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, name: str,
+                    lines: dict[str, int], label_column: str | None, checks: DataChecks
+                    ) -> pd.DataFrame:
+    """Apply study.toml's ``categorical`` and ``numeric`` declarations: a categorical column
+    keeps its values as text (codes 0-3 are four groups, not a scale); every filled cell of a
+    numeric one must be a number. Raises DataError naming file, line, column and value."""
+    columns = [c for c in attrs.columns if c != label_column]
+    for declared, kind in ((net.categorical, "categorical"), (net.numeric, "numeric")):
+        for column in declared:
+            if column not in columns:
+                listed = ", ".join(repr(c) for c in columns) or "none"
+                checks.add(Finding("error", name, f"{kind} = [...] in study.toml names "
+                                   f"{column!r}, which is not a node attribute of this node list "
+                                   f"(attribute columns: {listed})", line=1, column=column,
+                                   value=column))
+    checks.raise_if_errors()
+    typed: pd.DataFrame = attrs.copy()
+    for column in net.categorical:
+        typed[column] = raw[column].astype("string").str.strip().replace({"": pd.NA})
+    for column in net.numeric:
+        text = raw[column].astype("string").str.strip().replace({"": pd.NA})
+        values: list[float | None] = []
+        for node, cell in text.items():
+            if pd.isna(cell):
+                values.append(None)
+                continue
+            value = _number(str(cell), net.decimal)
+            if value is None or not math.isfinite(value):
+                checks.add(Finding("error", name, f"numeric = [...] in study.toml declares "
+                                   f"{column!r} numeric, but this value is not a number",
+                                   line=lines.get(str(node)), column=column, value=str(cell)))
+                values.append(None)
+            else:
+                values.append(value)
+        checks.raise_if_errors()
+        numbers = pd.array(values, dtype="Float64")
+        whole = all(v is None or float(v).is_integer() for v in values)
+        typed[column] = pd.Series(numbers, index=typed.index).astype("Int64" if whole
+                                                                      else "Float64")
+    return typed
 
 
 # ---------------------------------------------------------------------------------------------
@@ -541,6 +584,9 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     node_frame = _rename_reserved_columns(node_frame, label_column, study.relative(net.nodes)
                                           if net.nodes else data_name, checks)
     attrs = _typed_attributes(node_frame, net.decimal)
+    if net.categorical or net.numeric:
+        attrs = _declared_types(attrs, node_frame, net, nodes_name, node_lines, label_column,
+                                checks)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
     if label_column == net.node_id:
         labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
@@ -560,7 +606,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                            count=len(isolates)))
     _check_display_settings(net, attribute_names, study)
     files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
-    return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files)
+    return CleanNetwork(net, nodes, edges, weighted, attribute_names, checks, files,
+                        len(known) if net.nodes is not None else None)
 
 
 # Columns of nodes.csv that netfolio writes itself; a node attribute may not take these names.

@@ -16,6 +16,7 @@ from dataclasses import dataclass, replace
 import pandas as pd
 
 from ..analyse import NetworkAnalysis
+from ..analyse.mixing import merge_groups
 from ..config import NetworkConfig, StudyConfig
 from ..errors import Finding
 from ..vocabulary import exact_text
@@ -101,8 +102,11 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
     elif _labels_dropped(net, protection):
         nodes["label"] = pd.array(ids, dtype="string")
     name = other_group(protection.min_group)
-    for column, small in small_groups(analysis, protection).items():
+    merged = small_groups(analysis, protection)
+    for column, small in merged.items():
         nodes[column] = _merged(nodes, column, small, name)
+    mixing = tuple(merge_groups(t, merged.get(t.attribute, ()), name) for t in analysis.mixing
+                   if t.attribute not in protection.drop)
 
     new_ids = [codes[node] for node in ids] if codes is not None else ids
     order = sorted(range(len(ids)), key=lambda i: new_ids[i]) if codes is not None else \
@@ -113,7 +117,8 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
     membership = analysis.communities.membership
     communities = replace(analysis.communities,
                           membership=tuple(membership[i] for i in order))
-    dropped_statistics = {f"assortativity:{column}" for column in protection.drop}
+    dropped_statistics = ({f"assortativity:{column}" for column in protection.drop}
+                          | {f"ei_index:{column}" for column in protection.drop})
     return replace(
         analysis,
         nodes=nodes,
@@ -127,6 +132,7 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
             t for t in analysis.significance.tests if t.statistic not in dropped_statistics)),
         findings=tuple(redact_finding(f, drop=protection.drop, withheld=withheld)
                        for f in analysis.findings),
+        mixing=mixing,
     )
 
 

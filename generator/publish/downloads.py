@@ -11,7 +11,7 @@ from typing import Any
 import networkx as nx
 import pandas as pd
 
-from ..analyse import NetworkAnalysis
+from ..analyse import MixingTable, NetworkAnalysis
 from ..vocabulary import (
     COMMUNITY,
     PATH_MEASURES,
@@ -20,9 +20,11 @@ from ..vocabulary import (
     exact_text,
     measure,
 )
+from ..vocabulary.mixing import mixing_csv_names
 from .archive import ZipTime, zip_bytes
 
 __all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "datapackage_json", "edges_csv", "graphml",
+           "mixing_csv", "mixing_files",
            "network_files", "nodes_csv", "significance_csv", "statistics_csv"]
 
 
@@ -60,6 +62,35 @@ def significance_csv(analysis: NetworkAnalysis) -> bytes:
              exact_text(t.z), exact_text(t.p), str(t.samples))
             for t in analysis.significance.tests]
     return _csv(pd.DataFrame(rows, columns=[name for name, _ in SIGNIFICANCE_COLUMNS]))
+
+
+def mixing_files(analysis: NetworkAnalysis) -> dict[str, MixingTable]:
+    """The file name of each mixing matrix (``mixing-<attribute>.csv``) and its table."""
+    names = mixing_csv_names(analysis.attributes)
+    return {names[t.attribute]: t for t in analysis.mixing}
+
+
+def mixing_csv(table: MixingTable) -> bytes:
+    """The mixing matrix: one row per group (the first column names it), one column per group;
+    directed: rows send, columns receive; undirected: symmetric."""
+    frame = pd.DataFrame([list(row) for row in table.counts], columns=list(table.groups))
+    frame.insert(0, table.attribute, list(table.groups))
+    return _csv(frame)
+
+
+def _mixing_resource(a: NetworkAnalysis, file: str, table: MixingTable) -> dict[str, Any]:
+    cell = ("Ties from the row's group to this group." if table.directed else
+            "Ties between the row's group and this group (symmetric; a tie inside a group is "
+            "counted once on the diagonal).")
+    fields = [{"name": table.attribute, "type": "string",
+               "description": f"Group of the node attribute {table.attribute!r}"
+               + (" (the sending end)." if table.directed else ".")}]
+    fields += [{"name": g, "type": "integer", "description": cell} for g in table.groups]
+    return {"name": f"{a.network_id}-{file.removesuffix('.csv')}".lower(),
+            "path": f"{a.network_id}/{file}", "profile": "tabular-data-resource",
+            "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
+            "title": f"{a.title}: mixing matrix of {table.attribute}",
+            "schema": {"fields": fields}}
 
 
 def _significance_resource(a: NetworkAnalysis) -> dict[str, Any]:
@@ -161,6 +192,7 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
         ]
         if a.significance.tests:
             resources.append(_significance_resource(a))
+        resources += [_mixing_resource(a, file, table) for file, table in mixing_files(a).items()]
     resources += list(extra)
     descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
                   "resources": resources}
@@ -178,6 +210,8 @@ def network_files(analysis: NetworkAnalysis) -> dict[str, bytes]:
     }
     if analysis.significance.tests:
         files[prefix + "significance.csv"] = significance_csv(analysis)
+    for file, table in mixing_files(analysis).items():
+        files[prefix + file] = mixing_csv(table)
     return files
 
 

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 from ..errors import Finding
 from ..vocabulary import MISSING, count
 from .inputs import NetworkPageInput
+from .mixing import isolates_text
 from .site_map import PageFrame, network_page
 
 __all__ = ["LEVEL_TITLES", "NOTES_RULES", "ChecksPage", "FindingGroup", "FindingRow", "NetworkChecks",
@@ -52,6 +53,7 @@ class NetworkChecks:
     page_href: str
     rules: tuple[str, ...]
     groups: tuple[FindingGroup, ...]
+    isolates: str = ""  # how many listed nodes have no ties, and how measures treat them
 
 
 @dataclass(frozen=True)
@@ -110,6 +112,7 @@ def checks_context(frame: PageFrame, networks: list[NetworkPageInput], *,
             id=item.id, title=item.title, anchor=f"network-{item.id}",
             page_href=frame.href(network_page(item.id)), rules=_rules(item),
             groups=finding_groups(item.analysis.findings),
+            isolates=isolates_text(item.analysis),
         ) for item in networks),
         notes=None if notes is None else NotesChecks(
             title="Notes and summary", anchor="notes", rules=NOTES_RULES,

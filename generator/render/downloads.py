@@ -14,6 +14,7 @@ from ..vocabulary import (
     file_size,
     measure,
 )
+from ..vocabulary.mixing import mixing_csv_names
 from .describe import weight_reading
 from .inputs import NetworkPageInput
 from .site_map import ALL_DATA, DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
@@ -127,6 +128,17 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
                         f"against {count_of(tested.samples, 'network')} rewired at random with "
                         "the same degrees (the Methods page says how), at full precision.",
                         tuple(ColumnInfo(n, text) for n, text in SIGNIFICANCE_COLUMNS)),)
+    names = mixing_csv_names(item.analysis.attributes)
+    for table in item.analysis.mixing:
+        cells = ("ties sent from the row's group to this group" if table.directed else
+                 "ties between the row's group and this group (symmetric; a tie inside a group "
+                 "is counted once on the diagonal)")
+        files += (entry(names[table.attribute], f"The mixing matrix of {table.attribute}: tie "
+                        f"counts between its {count_of(len(table.groups), 'group')}, from which "
+                        f"the E-I index ei_index:{table.attribute} is computed.", (
+                            ColumnInfo(table.attribute, "the row's group" + (
+                                " (the sending end)" if table.directed else "")),
+                            ColumnInfo("one column per group", cells))),)
     figures = tuple(FigureDownload(
         title=f.title,
         svg_path=figure_file(item.id, f.name, "svg"),

@@ -19,8 +19,10 @@ from ..vocabulary import (
     significance_method,
     statistic,
 )
+from ..vocabulary.mixing import mixing_method_text
 from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
 from .inputs import NetworkPageInput
+from .mixing import isolates_text
 from .network_page import omitted_measures, sampling_sentence
 from .site_map import CHECKS, PageFrame, network_page
 
@@ -90,6 +92,8 @@ class NetworkMethods:
     layout_citations: tuple[Citation, ...]
     seed: int
     versions: tuple[tuple[str, str], ...]
+    # Attribute mixing, brokerage and nodes without ties: paragraphs, each with its cites.
+    mixing: tuple[tuple[str, tuple[Citation, ...]], ...] = ()
 
 
 class _Citations:
@@ -252,6 +256,9 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
         layout_citations=cite.cite(LAYOUT_REFERENCES),
         seed=analysis.seed,
         versions=tuple(analysis.versions.items()),
+        mixing=tuple((text, cite.cite(keys)) for text, keys in mixing_method_text(
+            analysis, categorical=item.config.categorical, numeric=item.config.numeric,
+            isolates=isolates_text(analysis))),
     )
 
 

@@ -37,6 +37,7 @@ from .describe import (
 )
 from .figures import FigureView, figure_views
 from .inputs import NetworkPageInput
+from .mixing import MixingSection, is_mixing_figure, mixing_section
 from .significance import SignificanceView, is_null_figure, significance_view
 from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
 
@@ -322,6 +323,7 @@ class NetworkPage:
     significance: SignificanceView
     explorer: ExplorerView | None = None
     explorer_omitted: str | None = None  # why a network has no explorable map
+    mixing: MixingSection | None = None  # attribute mixing and the nodes with no ties
 
 
 def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
@@ -337,7 +339,8 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
         position_figures=tuple(f for f in figures if f.name in _POSITION_FIGURES),
         community_figures=tuple(f for f in figures if f.name == "communities"),
         other_figures=tuple(f for f in figures if f.name not in ("map", "communities")
-                            and f.name not in _POSITION_FIGURES and not is_null_figure(f.name)),
+                            and f.name not in _POSITION_FIGURES and not is_null_figure(f.name)
+                            and not is_mixing_figure(f.name)),
         top_tables=top_tables(analysis),
         top_count=TOP_COUNT,
         communities=community_view(analysis.communities),
@@ -358,4 +361,6 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
             anchors={row.name: row.anchor for row in statistics},
             methods_href=frame.href(f"{METHODS}#{anchor}-significance"),
             csv_href=frame.href(network_file(item.id, "significance.csv"))),
+        mixing=mixing_section(item, frame, tuple(f for f in figures if is_mixing_figure(f.name)),
+                              {row.name: (row.reading, row.anchor) for row in statistics}),
     )

@@ -54,6 +54,7 @@ from .significance import (
                          SIGNIFICANCE_LEVEL,
                          null_reading,
                          null_subject,
+                         null_subject_inline,
                          significance_method,
                          untested_reason,
 )
@@ -111,6 +112,7 @@ __all__ = [
     "ordinal",
     "null_reading",
     "null_subject",
+    "null_subject_inline",
     "number",
     "omission_reason",
     "plural",

@@ -135,6 +135,28 @@ MEASURES: tuple[MeasureEntry, ...] = (
             "the undirected version, ignoring weights; 0 below two neighbours.",
             meaning="Local clustering is the share of a node's neighbour pairs that are tied.",
             references=("watts1998",)),
+    MeasureEntry(name="constraint", title="Constraint", plain="constraint", reads="strength",
+            sizes_nodes=False, unit="sum of squared dependence (higher = fewer structural holes)",
+            definition="Burt's constraint on the undirected version, tie strengths as weights "
+            "(every tie 1 when unweighted): the sum over the node's neighbours j of (p_ij + sum "
+            "over its other neighbours q of p_iq p_qj)^2, where p_ij is the share of i's tie "
+            "strength that goes to j; as networkx's constraint with weight. Empty for an isolate, "
+            "where it is not defined.",
+            meaning="Constraint is high when a node's contacts are tied to each other, so it "
+            "bridges no gaps between them; low constraint marks a broker.",
+            references=("burt1992",)),
+    MeasureEntry(name="effective_size", title="Effective size", plain="effective size",
+            reads="strength", sizes_nodes=False, unit="non-redundant contacts",
+            definition="Burt's effective size on the undirected version, tie strengths as weights "
+            "(every tie 1 when unweighted): the sum over the node's neighbours j of (1 - sum over "
+            "its other neighbours q of p_iq m_jq), where p_iq is the share of i's tie strength "
+            "that goes to q and m_jq is j's tie to q divided by j's strongest tie; unweighted, the "
+            "number of neighbours n less 2t/n, t counting the ties among them. As networkx's "
+            "effective_size with weight, node by node. Empty for an isolate, where it is not "
+            "defined.",
+            meaning="Effective size counts a node's contacts less the redundancy among them: the "
+            "number of contacts that are not tied to each other.",
+            references=("burt1992",)),
     MeasureEntry(name=COMMUNITY, title="Community", plain="community", whole=True, reads="strength",
             sizes_nodes=False,
             definition="Number of the node's community in the partition kept (the best of several "

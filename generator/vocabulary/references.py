@@ -75,6 +75,11 @@ _ALL = [
     Reference("north2002", "North, B. V., Curtis, D. & Sham, P. C.: A note on the calculation of "
               "empirical P values from Monte Carlo procedures. American Journal of Human Genetics "
               "71(2):439-441, 2002.", "10.1086/341527"),
+    Reference("burt1992", "Burt, R. S.: Structural Holes: The Social Structure of Competition. "
+              "Harvard University Press, 1992.", "10.4159/9780674029095"),
+    Reference("krackhardt1988", "Krackhardt, D. & Stern, R. N.: Informal networks and "
+              "organizational crises: an experimental simulation. Social Psychology Quarterly "
+              "51(2):123-140, 1988.", "10.2307/2786835"),
     Reference("fruchterman1991", "Fruchterman, T. M. J. & Reingold, E. M.: Graph drawing by "
               "force-directed placement. Software: Practice and Experience 21(11):1129-1164, 1991.",
               "10.1002/spe.4380211102"),

@@ -19,6 +19,7 @@ __all__ = [
     "null_clause",
     "null_reading",
     "null_subject",
+    "null_subject_inline",
     "p_text",
     "significance_method",
     "untested_reason",
@@ -31,7 +32,7 @@ _NULLS = "rewired networks with the same degrees"
 # The columns of files/<id>/significance.csv, in order, with what each holds.
 SIGNIFICANCE_COLUMNS: tuple[tuple[str, str], ...] = (
     ("statistic", "the statistic tested, as named in statistics.csv (transitivity, reciprocity, "
-     "degree_assortativity, assortativity:<attribute>, modularity)"),
+     "degree_assortativity, assortativity:<attribute>, ei_index:<attribute>, modularity)"),
     ("observed", "its value on the network as measured"),
     ("null_mean", "its mean over the rewired networks with the same degrees"),
     ("null_sd", "its standard deviation over the rewired networks (N - 1 in the denominator)"),
@@ -55,9 +56,18 @@ _UNTESTED = {
 
 
 def null_subject(statistic: str) -> str:
-    """The statistic as the subject of a sentence: "Assortativity by clinic"."""
+    """The statistic as the subject of a sentence: "Assortativity by clinic", "E-I index of
+    clinic"."""
     base, _, attribute = statistic.partition(":")
+    if base == "ei_index":
+        return f"E-I index of {attribute}"
     return f"Assortativity by {attribute}" if attribute else _SUBJECTS[base]
+
+
+def null_subject_inline(statistic: str) -> str:
+    """The subject inside a sentence: "assortativity by clinic", "E-I index of clinic"."""
+    subject = null_subject(statistic)
+    return subject if subject.startswith("E-I") else subject[0].lower() + subject[1:]
 
 
 def p_text(p: float) -> str:
@@ -123,8 +133,7 @@ def significance_method(result: SignificanceResult, *, directed: bool, weighted:
     if not result.tests:
         return ((untested_reason(result.why or "not_requested"), ()),)
     n = result.samples
-    tested = [null_subject(t.statistic) for t in result.tests]
-    tested = [t[0].lower() + t[1:] for t in tested]
+    tested = [null_subject_inline(t.statistic) for t in result.tests]
     keeps = ("every node keeps its in-degree and its out-degree" if directed
              else "every node keeps its degree")
     sentences: list[tuple[str, tuple[str, ...]]] = [(
@@ -156,8 +165,8 @@ def significance_method(result: SignificanceResult, *, directed: bool, weighted:
         "as far from the mean as the observed value (|null - mean| >= |observed - mean|, equal "
         "to within 10^-12 counting as equally far). The smallest possible p is 1 / (N + 1).",
         ("north2002",)), (
-        f"A reading calls a statistic higher or lower than chance, and an assortativity a "
-        f"preference or an avoidance, only when p is below {number(SIGNIFICANCE_LEVEL)}; "
+        f"A reading calls a statistic higher or lower than chance, and an assortativity or an "
+        f"E-I index a preference or an avoidance, only when p is below {number(SIGNIFICANCE_LEVEL)}; "
         "otherwise it says no clear difference or tendency was found. Several statistics are "
         "tested at once, so one p below 0.05 in many can arise by chance.", ())]
     return tuple(sentences)

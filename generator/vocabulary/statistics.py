@@ -1,10 +1,10 @@
 """Every network statistic netfolio writes: its row name in statistics.csv, title, definition,
 references, and its plain reading for a non-specialist as a function of the value.
 
-Readings claim no more than the number supports. An assortativity claims a preference or an
-avoidance only when its test against rewired networks gives p below 0.05 (and says so); tested and
-not below, it reads as no clear tendency; untested, it says so, and a value below 0.1 in size reads
-as "no clear tendency"."""
+Readings claim no more than the number supports. An attribute assortativity or E-I index claims a
+preference or an avoidance only when its test against rewired networks gives p below 0.05 (and
+says so); tested and not below, it reads as no clear tendency; untested, it describes the value
+and says that no preference is claimed."""
 
 from __future__ import annotations
 
@@ -158,8 +158,25 @@ def _attribute_assortativity(r: Reading) -> str:
     if abs(r.value) < NEUTRAL_BELOW:
         return f"Ties show no clear tendency to join nodes {alike} or {unlike} (r = {shown})."
     side = alike if r.value > 0 else unlike
-    return (f"Ties lean {_strength_word(r.value)} towards joining nodes {side} (r = {shown}); "
-            "this is not tested against chance.")
+    return (f"r = {shown}: ties join nodes {side} more often than random mixing would. This was "
+            "not tested against chance, so it claims no tendency.")
+
+
+def _ei_index(r: Reading) -> str:
+    shown = number(r.value)
+    inside = share((1 - r.value) / 2)
+    test = _tested(r)
+    if test is not None:
+        if not is_clear(test):
+            return (f"No clear tendency for ties to stay inside or cross {r.attribute} groups "
+                    f"was found: E-I = {shown} is {null_clause(test)}.")
+        if not _above_chance(r, test):
+            return (f"Ties prefer nodes alike in {r.attribute}, staying inside groups more often "
+                    f"than chance would: E-I = {shown} is {null_clause(test)}.")
+        return (f"Ties avoid nodes alike in {r.attribute}, crossing groups more often than chance "
+                f"would: E-I = {shown} is {null_clause(test)}.")
+    return (f"E-I = {shown}: {inside} of the ties join nodes of the same {r.attribute}. This was "
+            "not tested against chance, so it claims no tendency.")
 
 
 def _modularity(r: Reading) -> str:
@@ -231,6 +248,13 @@ STATISTICS: tuple[StatisticEntry, ...] = (
               "(Pearson) form for numbers; directed networks use the directed mixing matrix. "
               "Nodes missing the attribute are left out.",
               read=_attribute_assortativity),
+    StatisticEntry(name="ei_index", title="E-I index", references=("krackhardt1988",),
+              definition="Krackhardt and Stern's E-I index of a categorical attribute: (E - I) / "
+              "(E + I), where I counts the ties joining two nodes of the same group and E the ties "
+              "joining nodes of different groups, each tie once; -1 when every tie stays inside "
+              "its group, +1 when every tie crosses. Ties with an end that has no value are left "
+              "out. The mixing matrix it comes from is mixing-<attribute>.csv.",
+              read=_ei_index),
     StatisticEntry(name="modularity", title="Modularity", references=("newman2004",),
               definition="Newman-Girvan modularity (resolution 1) of the reported communities, on "
               "the undirected version with strengths.", read=_modularity),
@@ -241,7 +265,22 @@ STATISTICS: tuple[StatisticEntry, ...] = (
     StatisticEntry(name="degree_centralization", title="Degree centralization",
               references=("freeman1979",),
               definition="Freeman: sum(max degree - degree) / ((n-1)(n-2)) on the undirected "
-              "version; 1 for a star, 0 when all degrees are equal.", read=_centralization),
+              "version; 1 for a star, 0 when all degrees are equal. In a directed network the "
+              "degree here counts each neighbour once whatever the direction (a reciprocated "
+              "pair is one tie), so it is not the degree column of nodes.csv (in + out); the "
+              "in- and out-degree centralizations use those columns.", read=_centralization),
+    StatisticEntry(name="in_degree_centralization", title="In-degree centralization",
+              references=("freeman1979",),
+              definition="Freeman: sum(max in-degree - in-degree) / (n-1)^2, over the in_degree "
+              "column (ties received, as counted in nodes.csv); (n-1)^2 is the largest possible "
+              "sum, reached when every other node points to one centre and to no one else. 1 for "
+              "such a star, 0 when every node receives as many ties.", read=_centralization),
+    StatisticEntry(name="out_degree_centralization", title="Out-degree centralization",
+              references=("freeman1979",),
+              definition="Freeman: sum(max out-degree - out-degree) / (n-1)^2, over the "
+              "out_degree column (ties sent, as counted in nodes.csv); 1 when one node sends a "
+              "tie to every other and no one else sends any, 0 when every node sends as many.",
+              read=_centralization),
     StatisticEntry(name="betweenness_centralization", title="Betweenness centralization",
               references=("freeman1979",),
               definition="Freeman: sum(max - betweenness) / (n-1) over normalised betweenness; 1 "
