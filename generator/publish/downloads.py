@@ -124,9 +124,11 @@ def _fields(frame: pd.DataFrame, described: dict[str, str]) -> list[dict[str, st
             for c in frame.columns]
 
 
-def datapackage_json(analyses: list[NetworkAnalysis], *, title: str) -> bytes:
-    """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV."""
-    resources = []
+def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
+                     extra: list[dict[str, Any]] | None = None) -> bytes:
+    """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV;
+    ``extra`` resources (those of two-mode networks) come first."""
+    resources = list(extra or [])
     for a in analyses:
         nodes = node_table(a)
         described = {"id": "Node id as written in the input.", "label": "Display label."}

@@ -262,6 +262,7 @@ class MethodsPage:
     page: PageFrame
     networks: tuple[NetworkMethods, ...]
     references: tuple[ReferenceEntry, ...]
+    two_mode: tuple[object, ...] = ()  # the two-mode networks' sections (render.two_mode_page)
 
 
 def methods_context(frame: PageFrame, networks: list[NetworkPageInput],

@@ -97,8 +97,10 @@ class SiteMap:
     """The pages of one site, their titles, and the navigation built for each of them."""
 
     def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
-                 notes: list[tuple[str, str]], version: str, notice: str = ""):
+                 notes: list[tuple[str, str]], version: str, notice: str = "",
+                 two_mode: list[tuple[str, str]] | None = None):
         self.study_title = study_title
+        self.two_mode = two_mode or []  # (id, title) of two-mode networks, listed first
         self.networks = networks  # (id, title) in study order
         self.notes = notes  # (stem, title), sorted by stem
         self.version = version
@@ -113,6 +115,7 @@ class SiteMap:
             return Link(label, page_href(path, target), current)
 
         nav = [link("Overview", INDEX)]
+        nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.two_mode]
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
         if self.notice:
