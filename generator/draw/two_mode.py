@@ -55,10 +55,16 @@ def draw_two_mode(analysis: TwoModeAnalysis, *, labels: bool = True) -> Figure:
                                      (second, ROUNDED_SQUARE, MODE_COLOURS[1])):
             xy = [position[(mode, i)] for i in nodes.loc[nodes["mode"] == mode, "id"]]
             if xy:
-                ax.scatter([p[0] for p in xy], [p[1] for p in xy], s=size, marker=marker,
+                ax.scatter([p[0] for p in xy], [p[1] for p in xy],
+                           s=size * (1.4 if mode == second else 1.0), marker=marker,
                            c=colour, edgecolors=NODE_EDGE, linewidths=0.6, zorder=2)
-        if labels and n <= MAX_LABELS:
-            for (x, y), label in zip(analysis.layout, nodes["label"]):
+        # Every node is named on a small map; on a larger one, the nodes of a mode small enough.
+        named = {m for m in analysis.modes
+                 if n <= MAX_LABELS or int((nodes["mode"] == m).sum()) <= MAX_LABELS // 2}
+        if labels:
+            for (x, y), label, mode in zip(analysis.layout, nodes["label"], nodes["mode"]):
+                if mode not in named:
+                    continue
                 ax.annotate(str(label), (x, y), xytext=(4, 3), textcoords="offset points",
                             fontsize=6.5, color=INK, zorder=3)
         ys = [p[1] for p in analysis.layout] or [0.0, 1.0]
