@@ -18,14 +18,14 @@ from typing import TextIO
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
+from .analyse.two_mode import analyse_two_mode, project
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import NetworkConfig, StudyConfig, load_study
 from .draw import FigureSettings, draw_network
 from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
-from .errors import ConfigError, DataError, Finding, OutputError
-from .analyse.two_mode import analyse_two_mode, project
 from .draw.two_mode import draw_two_mode
+from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
 from .ingest.two_mode import TwoModeNetwork, read_two_mode
 from .publish import (
@@ -38,8 +38,8 @@ from .publish import (
 )
 from .publish.archive import zip_time
 from .publish.lock import LockOwner, hold_study_lock
-from .publish.two_mode import two_mode_files, two_mode_resources
 from .publish.site import recover_interrupted_site
+from .publish.two_mode import two_mode_files, two_mode_resources
 from .render import NetworkPageInput, render_site
 from .render.node_view import node_view_limit
 from .render.site import PartnerCopy, render_notes

@@ -447,7 +447,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
             seen[net_id] = i
     networks = tuple(p for net in written for p in (projections(net) if net.two_mode else (net,)))
     two_mode = tuple(net for net in written if net.two_mode)
-    for i, net in enumerate(written):
+    for net in written:
         for data_path in (net.data_file, net.nodes):
             if data_path is not None and data_path.is_relative_to(output):
                 raise ConfigError(f"'{data_path.relative_to(root)}' lies inside the output folder",

@@ -14,14 +14,13 @@ from pathlib import Path
 
 import networkx as nx
 import pytest
+from conftest import csv_text, write_study
 from networkx.algorithms import bipartite
 
 from generator.analyse.two_mode import analyse_two_mode, project, projected_ties
 from generator.cli import main
 from generator.config import load_study
 from generator.ingest.two_mode import read_two_mode
-
-from conftest import csv_text, write_study
 
 DAVIS = nx.davis_southern_women_graph()
 WOMEN = sorted(DAVIS.graph["top"])

@@ -259,12 +259,12 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
     renamed = _renamed_attributes(attribute_names, header, nodes_name, checks)
     records = []
     for key in ordered:
-        row = attribute_rows.get(key)
-        values = {new: (row[header.index(old)] if row is not None else "")
+        found = attribute_rows.get(key)
+        values = {new: (found[header.index(old)] if found is not None else "")
                   for old, new in zip(attribute_names, renamed)}
         label = ""
-        if row is not None and label_column is not None:
-            label = row[header.index(label_column)].strip()
+        if found is not None and label_column is not None:
+            label = found[header.index(label_column)].strip()
         records.append({"mode": key[0], "id": key[1], "label": label or key[1], **values})
     nodes = pd.DataFrame(records, columns=["mode", "id", "label", *renamed]).astype("string")
 
@@ -321,4 +321,5 @@ def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
                             max(weights) if net.duplicates == "max" else
                             sum(weights) / len(weights))
         frame["weight"] = pd.Series(combined, dtype=float)
-    return frame
+    result: pd.DataFrame = frame
+    return result

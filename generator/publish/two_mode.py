@@ -26,12 +26,14 @@ def _edges(analysis: TwoModeAnalysis) -> pd.DataFrame:
     edges = analysis.edges.rename(columns={"first": first, "second": second})
     if "weight" in edges and (edges["weight"] % 1 == 0).all():
         edges = edges.assign(weight=edges["weight"].astype("int64"))
-    return edges
+    result: pd.DataFrame = edges
+    return result
 
 
 def _statistics(analysis: TwoModeAnalysis) -> pd.DataFrame:
-    return pd.DataFrame([(s.name, exact_text(s.value)) for s in analysis.statistics],
-                        columns=["statistic", "value"])
+    rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
+    table: pd.DataFrame = pd.DataFrame(rows, columns=["statistic", "value"])
+    return table
 
 
 def two_mode_files(analysis: TwoModeAnalysis) -> dict[str, bytes]:

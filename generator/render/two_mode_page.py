@@ -138,7 +138,7 @@ def two_mode_methods(item: TwoModeInput, frame: PageFrame) -> TwoModeMethods:
         f"Density is the number of ties m divided by the n1 × n2 {first}–{second} pairs that "
         f"could be tied; ties within a mode are impossible, so the one-mode density "
         "2m / (n(n - 1)) would understate it (Borgatti & Everett 1997).",
-        f"Degree share is a node's degree divided by the number of nodes of the other mode "
+        "Degree share is a node's degree divided by the number of nodes of the other mode "
         "(Borgatti & Everett 1997): a share of 1 means tied to every one of them.",
     ]
     for mode in a.modes:
