@@ -155,8 +155,8 @@ def _two_mode_config(study: StudyConfig, network_id: str) -> NetworkConfig:
     return next(net for net in study.two_mode if net.id == network_id)
 
 
-def _two_mode_inputs(study: StudyConfig, analyses: list[NetworkAnalysis], progress: Progress,
-                     *, labels: bool = True) -> list[TwoModeInput]:
+def _two_mode_inputs(study: StudyConfig, analyses: list[NetworkAnalysis], progress: Progress
+                     ) -> list[TwoModeInput]:
     """Each two-mode network read, analysed and drawn; cheap beside its projections, so it is
     not cached."""
     inputs = []
@@ -165,8 +165,8 @@ def _two_mode_inputs(study: StudyConfig, analyses: list[NetworkAnalysis], progre
         projected = {a.network_id.removeprefix(f"{net.id}-"): len(a.edges) > 0
                      for a in analyses if a.network_id in {f"{net.id}-{m}" for m in net.modes}}
         files = tuple(study.relative(p) for p in (net.data_file, net.nodes) if p is not None)
-        inputs.append(TwoModeInput(analysis=analysis, figures=[draw_two_mode(analysis,
-                                   labels=labels)], files=files, projected=projected))
+        inputs.append(TwoModeInput(analysis=analysis, figures=[draw_two_mode(analysis)],
+                                   files=files, projected=projected))
         for mode, tied in projected.items():
             if not tied:
                 progress.warn(f"{net.id}: no two {mode} nodes share a node of the other mode, so "
@@ -401,8 +401,12 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if cache is not None:
                 cache.store_files(keys[net.id], downloads)
         files.update(downloads)
-    two_mode = _two_mode_inputs(study, analyses, progress,
-                                labels=partner.labels if partner is not None else True)
+    two_mode: list[TwoModeInput] = []
+    if partner is None:
+        two_mode = _two_mode_inputs(study, analyses, progress)
+    elif study.two_mode:  # its ids and labels come straight from the files, unprotected
+        progress.warn("the two-mode networks' own pages and files are left out of partner "
+                      "copies; their projections are included, protected as every network is")
     for two in two_mode:
         files.update(two_mode_files(two.analysis))
         for figure in two.figures:
