@@ -225,6 +225,7 @@ def test_build_writes_the_two_mode_page_files_and_projection_pages(tmp_path: Pat
     assert (site / "networks" / "tr" / "figures" / "two-mode-map.png").is_file()
     methods = (site / "methods.html").read_text(encoding="utf-8")
     assert 'id="tr-two-mode"' in methods and "Borgatti" in methods and "1/(k - 1)" in methods
+    assert "projection of the two-mode network &#39;tr&#39; onto its staff nodes" in methods
     downloads = (site / "downloads.html").read_text(encoding="utf-8")
     assert "files/tr/nodes.csv" in downloads
     package = json.loads((site / "files" / "datapackage.json").read_text(encoding="utf-8"))

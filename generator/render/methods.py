@@ -122,6 +122,11 @@ def reference_entries(references: Iterable[Reference], *, link_dois: bool = True
 def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ...]:
     config, analysis = item.config, item.analysis
     data = relative.get("data", "")
+    if config.projected_mode is not None:
+        return (f"This network is the projection of the two-mode network "
+                f"'{config.projected_from}' (read from {data}) onto its {config.projected_mode} "
+                "nodes; how it was read, cleaned and projected is in that network's section on "
+                "this page.",)
     if isinstance(config.data, EdgeListSource):
         source = config.data
         weight = f", weight '{source.weight}'" if source.weight else ""

@@ -148,7 +148,7 @@ def two_mode_methods(item: TwoModeInput, frame: PageFrame) -> TwoModeMethods:
             f"they share at least one {other}: {projection_text(a.projection, mode, other)}. "
             "Weights of the two-mode ties are not used: each tie counts once. The projected "
             "weights are read as tie strengths, and the projection is analysed as every one-mode "
-            "network is (its own methods section follows)."
+            "network is (it has its own section on this page)."
             + ("" if item.projected[mode] else f" No two {mode} nodes share a {other}, so this "
                "projection has no ties."))
     columns = tuple(Row((name, text(a.modes))) for name, text in TWO_MODE_COLUMNS.items())
