@@ -160,6 +160,17 @@ def test_node_of_one_mode_in_the_other_side_column_exits_1(tmp_path: Path, capsy
         assert piece in err
 
 
+def test_incidence_matrix_column_of_the_wrong_mode_exits_1(tmp_path: Path, capsys) -> None:
+    root = write_study(tmp_path, networks=[{
+        "id": "t", "matrix": "data/m.csv", "nodes": "data/n.csv", "two_mode": True,
+        "modes": ["person", "event"]}],
+        files={"data/m.csv": "id,e1,b\na,1,1\n",
+               "data/n.csv": "id,mode\na,person\nb,person\ne1,event\n"})
+    err = _cli_error(root, capsys)
+    for piece in ("data/m.csv", "line 1", "'b'", "listed as a person", "data/n.csv (line 3)"):
+        assert piece in err
+
+
 def test_unknown_mode_in_the_node_list_exits_1(tmp_path: Path, capsys) -> None:
     root = write_study(tmp_path, networks=[{
         "id": "t", "edges": "data/e.csv", "nodes": "data/n.csv", "two_mode": True,

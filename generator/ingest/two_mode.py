@@ -180,11 +180,16 @@ def _refuse_wrong_side(ties: list[_RawTie], declared: dict[NodeKey, int], net: N
             if (mode, node) in reported:
                 continue
             reported.add((mode, node))
+            in_header = column == "header row"  # an incidence matrix's column id
             checks.add(Finding(
                 "error", data_name, f"node {node!r} is listed as a {other} in {nodes_name} "
                 f"(line {declared[(other, node)]}) but appears in the {mode} column; in a "
-                f"two-mode network the {column!r} column holds {mode} nodes only",
-                line=tie.line, column=column, value=node))
+                f"two-mode network the {column!r} column holds {mode} nodes only"
+                if not in_header else
+                f"node {node!r} is listed as a {other} in {nodes_name} (line "
+                f"{declared[(other, node)]}) but names a column of the incidence matrix, whose "
+                f"columns are {mode} nodes", line=1 if in_header else tie.line,
+                column=node if in_header else column, value=node))
 
 
 def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
