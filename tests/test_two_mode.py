@@ -203,6 +203,16 @@ def test_a_projection_with_no_ties_builds_with_a_warning(tmp_path: Path, capsys)
     assert (tmp_path / "site" / "networks" / "lone-person" / "index.html").is_file()
 
 
+def test_a_mode_with_no_nodes_is_a_clear_error_not_a_crash(tmp_path: Path, capsys) -> None:
+    # An incidence matrix of rows only: people, but no event at all.
+    root = write_study(tmp_path, networks=[{
+        "id": "half", "matrix": "data/m.csv", "two_mode": True, "modes": ["person", "event"]}],
+        files={"data/m.csv": "id\na\nb\n"})
+    err = _cli_error(root, capsys)
+    assert "data/m.csv, line 1: names no event node" in err
+    assert "projection onto event would be empty" in err
+
+
 def _csv_rows(path: Path) -> list[dict[str, str]]:
     return list(csv.DictReader(io.StringIO(path.read_text(encoding="utf-8"))))
 

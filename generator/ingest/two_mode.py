@@ -256,6 +256,15 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
                                f"attributes: {shown}", value=unknown[0][1], count=len(unknown)))
 
     ordered = sorted(keys, key=lambda k: (k[0] != first, natural_key(k[1])))
+    for mode, other in ((first, second), (second, first)):
+        if not any(k[0] == mode for k in ordered):
+            where = ("the target column" if isinstance(net.data, EdgeListSource) else
+                     "the header row") + (" or the node list" if net.nodes is not None else "")
+            raise DataError(Finding(
+                "error", data_name, f"names no {mode} node ({where} holds none), so the two-mode "
+                f"network has one mode only and its projection onto {mode} would be empty; "
+                f"give at least one {mode} node, or read the {other} nodes as a one-mode "
+                "network without two_mode", line=1))
     label_column = net.label
     if label_column is None and "label" in header:
         label_column = "label"
