@@ -15,7 +15,7 @@ from ..config import NetworkConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork, DataChecks
 from ..ingest.network import natural_key
-from ..ingest.two_mode import TwoModeNetwork, typed_mode_attributes
+from ..ingest.two_mode import TwoModeNetwork, projection_findings, typed_mode_attributes
 from .layout import network_layout
 from .statistics import Statistic
 
@@ -124,7 +124,6 @@ def project(network: TwoModeNetwork, config: NetworkConfig) -> CleanNetwork:
     network the rest of the analysis takes like any other. Its weights are strengths."""
     mode = config.projected_mode
     assert mode is not None, "not a projection"
-    other = network.modes[1] if mode == network.modes[0] else network.modes[0]
     rows = network.nodes[network.nodes["mode"] == mode]
     ids = [str(v) for v in rows["id"]]
     attributes = typed_mode_attributes(network, mode)
@@ -137,16 +136,7 @@ def project(network: TwoModeNetwork, config: NetworkConfig) -> CleanNetwork:
     edges = pd.DataFrame({"source": pd.Series([a for a, _ in pairs], dtype=str),
                           "target": pd.Series([b for _, b in pairs], dtype=str),
                           "weight": pd.Series([ties[p] for p in pairs], dtype=float)})
-    checks = DataChecks(list(network.checks.findings))
-    data_name = network.checks.findings[0].file if network.checks.findings else network.id
-    how = ("the number of " + f"{other} nodes they share" if network.config.projection == "shared"
-           else f"the sum over the {other} nodes they share of 1/(k - 1), k being that "
-           f"{other}'s number of ties (Newman 2001)")
-    checks.add(Finding("note", data_name, f"projection of the two-mode network "
-                       f"{network.id!r} onto its {mode} nodes: two {mode} nodes are tied when they "
-                       f"share at least one {other}, the tie's weight is {how}"))
-    if not pairs:
-        checks.add(Finding("warning", data_name, f"no two {mode} nodes share a {other}, so the "
-                           f"projection onto {mode} has no ties"))
+    checks = DataChecks([*network.checks.findings,
+                         *projection_findings(network, mode, tied=bool(pairs))])
     return CleanNetwork(config, nodes, edges, True, tuple(attributes.columns), checks,
                         network.files)

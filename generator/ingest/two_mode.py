@@ -27,7 +27,8 @@ from .network import (
     natural_key,
 )
 
-__all__ = ["MODE_COLUMN", "TwoModeNetwork", "read_two_mode", "typed_mode_attributes"]
+__all__ = ["MODE_COLUMN", "TwoModeNetwork", "projection_findings", "read_two_mode",
+           "typed_mode_attributes"]
 
 MODE_COLUMN = "mode"  # the optional node-list column naming each node's mode
 TWO_MODE_COLUMNS = ("mode", "degree_share")  # columns of a two-mode nodes.csv netfolio writes
@@ -337,3 +338,20 @@ def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
         frame["weight"] = pd.Series(combined, dtype=float)
     result: pd.DataFrame = frame
     return result
+
+
+def projection_findings(network: TwoModeNetwork, mode: str, *, tied: bool) -> list[Finding]:
+    """What the checks page says of a projection onto ``mode``: how it was made, and a warning
+    when no two of its nodes share a node of the other mode (``tied`` False)."""
+    other = network.modes[1] if mode == network.modes[0] else network.modes[0]
+    name = network.checks.findings[0].file if network.checks.findings else network.id
+    how = (f"the number of {other} nodes they share" if network.config.projection == "shared"
+           else f"the sum over the {other} nodes they share of 1/(k - 1), k being that "
+           f"{other}'s number of ties (Newman 2001)")
+    found = [Finding("note", name, f"projection of the two-mode network {network.id!r} onto "
+                     f"its {mode} nodes: two {mode} nodes are tied when they share at least one "
+                     f"{other}, the tie's weight is {how}")]
+    if not tied:
+        found.append(Finding("warning", name, f"no two {mode} nodes share a {other}, so the "
+                             f"projection onto {mode} has no ties"))
+    return found
