@@ -127,3 +127,30 @@ def test_no_page_scrolls_sideways_on_a_phone(site: Path, browser, artifacts: Pat
             assert errors == []
         finally:
             page.close()
+
+
+def test_the_node_table_keeps_its_header_and_first_column_in_view_and_says_it_scrolls(
+        site: Path, browser) -> None:
+    page, errors = _open(browser, site / PAGE_KINDS["nodes"], width=390, scheme="light")
+    try:
+        box = page.locator(".table-scroll.pinned")
+        assert page.locator(".scroll-hint").count() == 1  # wider than a phone: it says so
+        header = page.locator("#node-table thead th").first
+        first_cell = page.locator("#node-table tbody tr").nth(30).locator("th")
+        box.scroll_into_view_if_needed()
+        box.evaluate("box => { box.scrollTop = 600; box.scrollLeft = 400; }")
+        page.wait_for_timeout(100)
+        # Scrolled down inside its box, the header row sits at the top of the box.
+        assert abs(header.bounding_box()["y"] - box.bounding_box()["y"]) < 2
+        first_cell.scroll_into_view_if_needed()
+        box.evaluate("box => { box.scrollLeft = 400; }")
+        left = box.bounding_box()["x"]
+        assert abs(first_cell.bounding_box()["x"] - left) < 2  # the id column stays at the left
+        assert errors == []
+    finally:
+        page.close()
+    wide, _ = _open(browser, site / "checks.html", width=1440, scheme="light")
+    try:
+        assert wide.locator(".scroll-hint").count() == 0  # nothing to say when everything fits
+    finally:
+        wide.close()

@@ -399,3 +399,89 @@ def test_the_header_search_says_when_nothing_is_found_and_keys_move_through_resu
     assert focused.endswith("#statistic-density")
     tab.page.keyboard.press("Enter")
     tab.page.wait_for_url("**#statistic-density")
+
+
+@pytest.fixture(scope="module")
+def large_site(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """The example's co-working network built as if it were above the explorable map's node
+    limit (the limit lowered to 20): the map shows its communities."""
+    from generator.draw import explorer as explorer_module
+
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(explorer_module, "EXPLORER_MAX_NODES", 20)
+        return build_example(tmp_path_factory.mktemp("large"))
+
+
+def test_a_network_above_the_limit_is_explored_by_its_communities(large_site: Path, tab: _Tab
+                                                                   ) -> None:
+    import pandas as pd
+    section = _explorer(tab, large_site, "coworking")
+    nodes = pd.read_csv(large_site / "files/coworking/nodes.csv")
+    edges = pd.read_csv(large_site / "files/coworking/edges.csv", dtype=str)
+    communities = nodes["community"].nunique()
+    assert section.is_visible() and "shows the" in section.locator(".notice").inner_text()
+    assert tab.page.locator("#explore circle.explorer-node").count() == communities
+    member = dict(zip(nodes["id"].astype(str), nodes["community"]))
+    pairs = {tuple(sorted((member[s], member[t]))) for s, t in zip(edges["source"], edges["target"])
+             if member[s] != member[t]}
+    assert tab.page.locator("#explore line.explorer-tie").count() == len(pairs)
+    _node_circle(tab, 0).hover(force=True)
+    tab.page.wait_for_timeout(100)
+    details = tab.page.locator("#explore .explorer-details").inner_text()
+    assert "Community 1" in details
+    assert f"Members\n{(nodes['community'] == 1).sum()}" in details
+    assert tab.console == [] and tab.violations() == []
+
+
+# Two fingers moving apart over the map, then one finger dragging it, as touch pointer events.
+PINCH_AND_DRAG = """
+() => {
+  const svg = document.querySelector("#explore svg");
+  const box = svg.getBoundingClientRect();
+  const cx = box.left + box.width / 2, cy = box.top + box.height / 2;
+  const send = (type, id, x, y) => svg.dispatchEvent(new PointerEvent(type, {
+    pointerId: id, pointerType: "touch", clientX: x, clientY: y, bubbles: true, isPrimary: id === 1}));
+  send("pointerdown", 1, cx - 20, cy);
+  send("pointerdown", 2, cx + 20, cy);
+  for (let step = 1; step <= 10; step++) {
+    send("pointermove", 1, cx - 20 - 4 * step, cy);
+    send("pointermove", 2, cx + 20 + 4 * step, cy);
+  }
+  send("pointerup", 1, cx - 60, cy);
+  send("pointerup", 2, cx + 60, cy);
+}
+"""
+DRAG = """
+() => {
+  const svg = document.querySelector("#explore svg");
+  const box = svg.getBoundingClientRect();
+  const cx = box.left + box.width / 2, cy = box.top + box.height / 2;
+  const send = (type, x, y) => svg.dispatchEvent(new PointerEvent(type, {
+    pointerId: 7, pointerType: "touch", clientX: x, clientY: y, bubbles: true, isPrimary: true}));
+  send("pointerdown", cx, cy);
+  for (let step = 1; step <= 5; step++) send("pointermove", cx + 10 * step, cy + 4 * step);
+  send("pointerup", cx + 50, cy + 20);
+}
+"""
+
+
+def test_the_map_zooms_with_two_fingers_and_moves_with_one(site: Path, browser) -> None:
+    context = browser.new_context(viewport={"width": 390, "height": 844}, has_touch=True,
+                                  is_mobile=True)
+    page = context.new_page()
+    try:
+        page.goto((site / "networks/advice/index.html").as_uri())
+        page.locator("#explore").scroll_into_view_if_needed()
+        assert page.locator("#explore").get_attribute("data-scale") == "1.000"
+        page.evaluate(PINCH_AND_DRAG)
+        page.wait_for_timeout(150)  # the view is redrawn on the next animation frame
+        scale = float(page.locator("#explore").get_attribute("data-scale"))
+        assert scale > 2.0  # the fingers ended 120 px apart from 40: about three times closer
+        view = page.locator("#explore g.explorer-view")
+        before = view.get_attribute("transform")
+        page.evaluate(DRAG)
+        page.wait_for_timeout(100)
+        assert view.get_attribute("transform") != before
+        assert page.locator("#explore").get_attribute("data-scale") == f"{scale:.3f}"
+    finally:
+        context.close()

@@ -15,7 +15,7 @@ from conftest import analyse_graph, edge_study
 
 from generator.build import build_study
 from generator.draw import explorer as explorer_module
-from generator.draw.explorer import explorer_data
+from generator.draw.explorer import community_explorer_data, explorer_data
 from generator.draw.figure import FigureSettings
 from generator.draw.node_encoding import colour_nodes
 from generator.vocabulary import number
@@ -92,11 +92,39 @@ def test_a_label_that_looks_like_markup_stays_inside_its_string(tmp_path: Path) 
     assert data["anchors"] == ["node-1", "node-2", "node-3"]
 
 
-def test_a_large_network_keeps_the_static_map_only(tmp_path: Path, monkeypatch) -> None:
+def test_a_large_network_is_explored_by_its_communities(tmp_path: Path, monkeypatch) -> None:
     monkeypatch.setattr(explorer_module, "EXPLORER_MAX_NODES", 3)
     analysis = analyse_graph(tmp_path / "four", nx.path_graph(4))
-    assert explorer_data(analysis) is None
-    assert explorer_data(analyse_graph(tmp_path / "three", nx.path_graph(3))) is not None
+    data = explorer_data(analysis)
+    assert data is not None and data.level == "community"
+    assert len(data.ids) == analysis.communities.count
+    small = explorer_data(analyse_graph(tmp_path / "three", nx.path_graph(3)))
+    assert small is not None and small.level == "node"
+
+
+def test_the_community_map_counts_members_and_ties_within_and_between(tmp_path: Path) -> None:
+    # Three cliques of 5, 4 and 3 nodes (sizes by which the communities are numbered), joined
+    # by ties counted by hand: 2 between the first and second, 1 between the second and third.
+    graph = nx.disjoint_union_all([nx.complete_graph(5), nx.complete_graph(4), nx.complete_graph(3)])
+    graph.add_edges_from([(0, 5), (1, 6), (6, 9)])
+    analysis = analyse_graph(tmp_path, graph)
+    assert analysis.communities.sizes == (5, 4, 3)
+    data = community_explorer_data(analysis)
+    assert data is not None and data.labels == ("Community 1", "Community 2", "Community 3")
+    facts = dict(data.facts)
+    assert facts["Members"] == ("5", "4", "3")
+    assert facts["Ties inside"] == ("10", "6", "3")  # n(n-1)/2 in each clique
+    assert facts["Ties with other communities"] == ("2", "3", "1")
+    assert [(a, b, text) for a, b, _, text in data.ties] == [(0, 1, "2"), (1, 2, "1")]
+    assert data.radii[0] > data.radii[1] > data.radii[2]
+    # Each community sits at the mean position of its members, and has their colour.
+    nodes = explorer_data(analysis)
+    assert nodes is not None
+    first = [i for i, c in enumerate(analysis.communities.membership) if c == 1]
+    mean_x = sum(nodes.xy[i][0] for i in first) / len(first)
+    assert abs(data.xy[0][0] - mean_x) < 0.02
+    assert data.colourings[0].colours[0] == dict(
+        (c.name, c) for c in nodes.colourings)["community"].colours[first[0]]
 
 
 def test_weights_and_directions_reach_the_map(tmp_path: Path) -> None:

@@ -20,11 +20,15 @@ from .figure import DEFAULT_SETTINGS, FigureSettings
 from .node_encoding import NodeColours, colour_measure, colour_nodes, size_nodes
 from .tie_geometry import tie_widths
 
-__all__ = ["EXPLORER_MAX_NODES", "ColourChoice", "ExplorerData", "explorer_data"]
+__all__ = ["COMMUNITY_LEVEL", "EXPLORER_MAX_NODES", "NODE_LEVEL", "ColourChoice", "ExplorerData",
+           "community_explorer_data", "explorer_data"]
 
-# Above this many nodes the page keeps the static map only: thousands of SVG nodes make a
-# phone's browser crawl, and a map that dense shows nobody a tie.
+# Above this many nodes the explorable map shows the communities instead of the nodes:
+# thousands of SVG nodes make a phone's browser crawl, and a map that dense shows nobody a tie.
 EXPLORER_MAX_NODES = 2000
+NODE_LEVEL = "node"
+COMMUNITY_LEVEL = "community"
+_COMMUNITY_RADII = (8.0, 60.0)  # view units: the smallest and the largest community
 _VIEW = 1000.0  # the map's coordinates run 0..1000 along its longer side
 _PAD = 40.0
 _POINTS_PER_VIEW = 576.0 / _VIEW  # the static map is 8 in (576 pt) wide at most
@@ -55,6 +59,7 @@ class ExplorerData:
     size_title: str
     width: float
     height: float
+    level: str = NODE_LEVEL  # each circle is a node, or (COMMUNITY_LEVEL) a community
 
     def script(self) -> bytes:
         """The data file: one assignment of a JSON object. It is a script file of its own,
@@ -71,7 +76,7 @@ class ExplorerData:
                             "key": c.key} for c in self.colourings],
             "facts": [{"title": t, "values": v} for t, v in self.facts],
             "anchors": [node_anchor(i) for i in range(len(self.ids))],
-            "sizeTitle": self.size_title,
+            "sizeTitle": self.size_title, "level": self.level,
         }
         text = json.dumps(data, ensure_ascii=False, separators=(",", ":"))
         return (f"/* netfolio: the explorable map of network {self.network_id}, read by "
@@ -118,12 +123,62 @@ def _weight_text(value: object) -> str:
     return "" if value is None or (isinstance(value, float) and math.isnan(value)) else number(value)
 
 
+def community_explorer_data(analysis: NetworkAnalysis) -> ExplorerData | None:
+    """The map of the communities: each community a circle at the mean position of its members,
+    its area growing with its members, and one line per pair of communities with ties between
+    them, its width growing with their count (directed: one line per direction). None for a
+    network without nodes."""
+    sizes = analysis.communities.sizes
+    if not sizes:
+        return None
+    k = len(sizes)
+    membership = np.array(analysis.communities.membership, dtype=int)
+    xy, width, height = _positions(analysis)
+    centres = [xy[membership == c].mean(axis=0) for c in range(1, k + 1)]
+    low, high = _COMMUNITY_RADII
+    largest = max(sizes)
+    radii = tuple(round(low + (high - low) * math.sqrt(size / largest), 2) for size in sizes)
+    index = {node: i for i, node in enumerate(analysis.nodes.index)}
+    inside = [0] * k
+    between: dict[tuple[int, int], int] = {}
+    for source, target in zip(analysis.edges["source"], analysis.edges["target"]):
+        a, b = membership[index[source]] - 1, membership[index[target]] - 1
+        if a == b:
+            inside[a] += 1
+            continue
+        pair = (int(a), int(b)) if analysis.directed else (int(min(a, b)), int(max(a, b)))
+        between[pair] = between.get(pair, 0) + 1
+    pairs = sorted(between)
+    counts = tuple(float(between[pair]) for pair in pairs)
+    widths = tie_widths(counts, weighted=True) / _POINTS_PER_VIEW
+    ties = tuple((a, b, round(float(w), 2), number(between[(a, b)]))
+                 for (a, b), w in zip(pairs, widths))
+    member_colours = colour_nodes(analysis, FigureSettings(color_by=COMMUNITY)).colours
+    colours = tuple(member_colours[int(np.flatnonzero(membership == c)[0])] for c in range(1, k + 1))
+    key = tuple((f"community {c}", colours[c - 1], sizes[c - 1]) for c in range(1, k + 1))
+    outside = [sum(n for pair, n in between.items() if c in pair) for c in range(k)]
+    facts = (("Members", tuple(number(size) for size in sizes)),
+             ("Ties inside", tuple(number(n) for n in inside)),
+             ("Ties with other communities", tuple(number(n) for n in outside)))
+    return ExplorerData(
+        network_id=analysis.network_id, directed=analysis.directed,
+        ids=tuple(str(c) for c in range(1, k + 1)),
+        labels=tuple(f"Community {c}" for c in range(1, k + 1)),
+        xy=tuple((round(float(x), 2), round(float(y), 2)) for x, y in centres),
+        radii=radii, ties=ties,
+        colourings=(ColourChoice(COMMUNITY, measure(COMMUNITY).title, colours, key),),
+        facts=facts, size_title="members", width=round(width, 2), height=round(height, 2),
+        level=COMMUNITY_LEVEL,
+    )
+
+
 def explorer_data(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS
                   ) -> ExplorerData | None:
-    """The explorable map of ``analysis``, or None above ``EXPLORER_MAX_NODES`` nodes."""
+    """The explorable map of ``analysis``: of its nodes, or above ``EXPLORER_MAX_NODES`` nodes
+    of its communities."""
     n = len(analysis.nodes)
     if n > EXPLORER_MAX_NODES:
-        return None
+        return community_explorer_data(analysis)
     xy, width, height = _positions(analysis)
     sizes = size_nodes(analysis, settings)
     # A marker of area s points^2 has radius sqrt(s)/2 points; the view is 1000 units wide.

@@ -10,7 +10,7 @@ from typing import Any
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
-from ..draw.explorer import EXPLORER_MAX_NODES
+from ..draw.explorer import COMMUNITY_LEVEL, EXPLORER_MAX_NODES
 from ..vocabulary import (
     COMMUNITY,
     MEASURE_NAMES,
@@ -278,6 +278,7 @@ class ExplorerView:
     nodes_href: str  # the node table, which a picked node links into
     directed: bool
     views_href: str = ""  # the folder of the nodes' own pages, when they have them
+    community_level: str = ""  # what the map shows instead of nodes, when it shows communities
 
 
 def explorer_view(item: NetworkPageInput, frame: PageFrame) -> ExplorerView | None:
@@ -287,7 +288,18 @@ def explorer_view(item: NetworkPageInput, frame: PageFrame) -> ExplorerView | No
                         nodes_href=frame.href(nodes_page(item.id)),
                         directed=item.analysis.directed,
                         views_href=frame.href(f"networks/{item.id}/nodes/") + "/"
-                        if item.ego is not None else "")
+                        if item.ego is not None else "",
+                        community_level=_community_level(item))
+
+
+def _community_level(item: NetworkPageInput) -> str:
+    if item.explorer is None or item.explorer.level != COMMUNITY_LEVEL:
+        return ""
+    return (f"With {count_of(len(item.analysis.nodes), 'node')}, more than "
+            f"{number(EXPLORER_MAX_NODES)}, this map shows the "
+            f"{count_of(len(item.explorer.ids), 'community', 'communities')} instead: each circle "
+            "is a community, its area growing with its members, and each line the ties between "
+            "two communities, wider for more ties. The static map above shows every node.")
 
 
 @dataclass(frozen=True)
@@ -309,7 +321,7 @@ class NetworkPage:
     links: NetworkLinks
     significance: SignificanceView
     explorer: ExplorerView | None = None
-    explorer_omitted: str | None = None  # why a large network has the static map only
+    explorer_omitted: str | None = None  # why a network has no explorable map
 
 
 def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
@@ -339,10 +351,8 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
             nodes_csv=frame.href(network_file(item.id, "nodes.csv")),
         ),
         explorer=explorer_view(item, frame),
-        explorer_omitted=None if len(analysis.nodes) <= EXPLORER_MAX_NODES else (
-            f"With {count_of(len(analysis.nodes), 'node')}, this network is shown by the static "
-            f"map only: above {number(EXPLORER_MAX_NODES)} nodes a map in the browser would be "
-            "too slow to explore."),
+        explorer_omitted=None if item.explorer is not None else (
+            "This network has no nodes to show on a map."),
         significance=significance_view(
             analysis, tuple(f for f in figures if is_null_figure(f.name)),
             anchors={row.name: row.anchor for row in statistics},

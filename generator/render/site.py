@@ -12,6 +12,7 @@ from markupsafe import Markup
 from ..config import StudyConfig
 from ..errors import Finding
 from .checks import checks_context
+from .contents import with_contents
 from .downloads import downloads_context
 from .inputs import NetworkPageInput
 from .methods import methods_context
@@ -238,7 +239,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             protections=partner.protections, cautions=partner.cautions,
             contact=partner.contact)))
 
-    output = {path: theme.render(template, context).encode("utf-8")
+    output = {path: with_contents(theme.render(template, context)).encode("utf-8")
               for path, template, context in pages}
     if reuse is not None:
         reuse.pages = {keys[path]: data for path, data in {**output, **reused}.items()

@@ -502,6 +502,13 @@
       box.appendChild(this.tieList("Ties", this.ties.out[index].concat(this.ties.in[index]),
                                    function (tie) { return tie[0] === index ? tie[1] : tie[0]; }));
     }
+    if (data.level === "community") {
+      // A community, not a person: the counts are of its members and of ties, and the
+      // communities page (when the site has one) lists who is in it.
+      box.appendChild(htmlElement("p", "A group found in the measured ties; its members are " +
+                                  "listed in the node table, by community.", "hint"));
+      return;
+    }
     var line = document.createElement("p");
     var views = this.section.getAttribute("data-views");
     if (views) {
