@@ -10,6 +10,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import zipfile
 from pathlib import Path
 
 import networkx as nx
@@ -253,3 +254,16 @@ def test_build_writes_the_two_mode_page_files_and_projection_pages(tmp_path: Pat
     fields = {r["name"]: [f["name"] for f in r["schema"]["fields"]] for r in package["resources"]}
     assert fields["tr-nodes"] == ["id", "mode", "label", "topic", "degree", "degree_share"]
     assert "tr-staff-nodes" in fields
+
+
+def test_a_partner_bundle_carries_the_projections_but_not_the_unprotected_two_mode_files(
+        tmp_path: Path, capsys) -> None:
+    root = write_study(tmp_path, networks=[{
+        "id": "tr", "edges": "data/e.csv", "two_mode": True, "modes": ["staff", "session"]}],
+        files={"data/e.csv": "source,target\np1,s1\np2,s1\np3,s1\np1,s2\np2,s2\n"})
+    bundle = tmp_path / "bundle.zip"
+    assert main(["pack", str(root), "--out", str(bundle)]) == 0
+    assert "left out of partner copies" in capsys.readouterr().err
+    names = zipfile.ZipFile(bundle).namelist()
+    assert any("files/tr-staff/nodes.csv" in n for n in names)
+    assert not any("files/tr/" in n or "networks/tr/" in n for n in names)
