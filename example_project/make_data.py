@@ -2,7 +2,7 @@
 
 What this script does
 ---------------------
-It writes three CSV files under ``data/``; every name, clinic and number in them is invented:
+It writes five CSV files under ``data/``; every name, clinic and number in them is invented:
 
 * ``data/staff.csv``      the staff roster (node list): id, name, clinic, role, years_in_post.
                           60 staff in five clinics; each clinic has one manager. One name holds a
@@ -19,6 +19,10 @@ It writes three CSV files under ``data/``; every name, clinic and number in them
                           later, after the Larkmoor and Quayside teams merged into one team (the
                           ``team`` column): most ties of the first wave are kept, many new ties
                           join the two merged clinics, three staff have left and two have joined.
+* ``data/attendance.csv`` a two-mode network: which staff attended which of twelve invented
+                          training sessions (s01-s12); ``data/training_nodes.csv`` is its node
+                          list, staff and sessions, with a ``mode`` column since the two share
+                          ids such as "s01".
 
 The advice file also carries, on purpose, the kind of faults real survey exports have, so that
 ``netfolio check`` has something to find and report:
@@ -304,6 +308,40 @@ def make_wave2(staff: pd.DataFrame, clean: pd.DataFrame) -> tuple[pd.DataFrame, 
     return roster.sort_values("id").reset_index(drop=True), advice
 
 
+SESSION_TOPICS = (  # invented training sessions: (id, topic, host clinic or None for all)
+    ("s01", "triage refresher", None), ("s02", "medication safety", None),
+    ("s03", "records system", "Stonewick"), ("s04", "records system", "Fernhollow"),
+    ("s05", "records system", "Larkmoor"), ("s06", "infection control", None),
+    ("s07", "home visits", "Stonewick"), ("s08", "home visits", "Fernhollow"),
+    ("s09", "language access", None), ("s10", "managers' forum", None),
+    ("s11", "diabetes care", "Larkmoor"), ("s12", "first aid", None),
+)
+
+
+def make_training(rng: np.random.Generator, staff: pd.DataFrame) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """A two-mode attendance file (staff x training session) and its node list, with a mode
+    column because staff and sessions share ids such as "s01". A session for one clinic draws
+    mostly its staff; the managers' forum draws managers; open sessions draw anyone."""
+    rows = []
+    for session, topic, host in SESSION_TOPICS:
+        for person in staff.itertuples():
+            if topic == "managers' forum":
+                chance = 0.9 if person.role == "manager" else 0.03
+            elif host is not None:
+                chance = 0.55 if person.clinic == host else 0.04
+            else:
+                chance = 0.22
+            if rng.random() < chance:
+                rows.append((person.id, session))
+    attendance = pd.DataFrame(rows, columns=["staff", "session"])
+    people = staff[["id", "name", "clinic", "role"]].assign(mode="staff", topic="")
+    sessions = pd.DataFrame([{"id": s, "name": f"{topic} ({s})", "clinic": host or "",
+                              "role": "", "mode": "session", "topic": topic}
+                             for s, topic, host in SESSION_TOPICS])
+    nodes = pd.concat([people, sessions])[["id", "mode", "name", "clinic", "role", "topic"]]
+    return attendance, nodes
+
+
 def main() -> None:
     rng = np.random.default_rng(SEED)
     staff = make_staff(rng)
@@ -320,11 +358,16 @@ def main() -> None:
     roster2, advice2 = make_wave2(staff, clean)
     roster2.to_csv(DATA / "staff_wave2.csv", **options)
     advice2.to_csv(DATA / "advice_wave2.csv", **options)
+    # Its own generator, so the files above stay as they were before the training data.
+    attendance, training_nodes = make_training(np.random.default_rng(SEED + 1), staff)
+    attendance.to_csv(DATA / "attendance.csv", **options)
+    training_nodes.to_csv(DATA / "training_nodes.csv", **options)
 
     print(f"staff.csv: {len(staff)} staff; advice isolates: {', '.join(isolates)}")
     print(f"advice.csv: {len(advice)} rows ({len(clean)} distinct clean ties)")
     print(f"coworking.csv: {len(coworking)} ties")
     print(f"staff_wave2.csv: {len(roster2)} staff; advice_wave2.csv: {len(advice2)} ties")
+    print(f"attendance.csv: {len(attendance)} attendances of {len(SESSION_TOPICS)} sessions")
     records = advice.to_dict("records")
     for kind, row in faults:
         lines = [i + 2 for i, r in enumerate(records)

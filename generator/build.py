@@ -19,14 +19,17 @@ from typing import TextIO
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
 from .analyse.compare import compare_series
+from .analyse.two_mode import analyse_two_mode, project
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import NetworkConfig, StudyConfig, load_study
 from .draw import FigureSettings, draw_network
 from .draw.compare import draw_community_flow, draw_series_statistics
 from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
+from .draw.two_mode import draw_two_mode
 from .errors import ConfigError, DataError, Finding, OutputError
 from .ingest import CleanNetwork, read_network
+from .ingest.two_mode import TwoModeNetwork, read_two_mode
 from .publish import (
     MARKER,
     all_data_zip,
@@ -39,12 +42,14 @@ from .publish.archive import zip_time
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.series import series_files, series_resources
 from .publish.site import recover_interrupted_site
+from .publish.two_mode import two_mode_files, two_mode_resources
 from .render import NetworkPageInput, render_site
 from .render.compare import SeriesInput, series_title
 from .render.node_view import node_view_limit
 from .render.site import PartnerCopy, render_notes
 from .render.site_map import ALL_DATA, DATAPACKAGE, compare_figure, explorer_file
 from .render.theme import load_theme
+from .render.two_mode_page import TwoModeInput
 from .vocabulary import count_of
 
 __all__ = ["BuildResult", "Progress", "Rebuilder", "build_info_stamp", "build_study", "check_study",
@@ -121,11 +126,23 @@ def _read_all(study: StudyConfig, progress: Progress, *, skip: Iterable[str] = (
     cleaned: dict[str, CleanNetwork] = {}
     errors: list[Finding] = []
     skipped = set(skip)
+    two_mode: dict[str, TwoModeNetwork | None] = {}
     for net in study.networks:
         if net.id in skipped:
             continue
         try:
-            clean = read_network(study, net)
+            if net.projected_from is not None:
+                if net.projected_from in two_mode:  # its errors are listed once
+                    parent = two_mode[net.projected_from]
+                    if parent is None:
+                        continue
+                else:
+                    two_mode[net.projected_from] = None
+                    parent = read_two_mode(study, _two_mode_config(study, net.projected_from))
+                    two_mode[net.projected_from] = parent
+                clean = project(parent, net)
+            else:
+                clean = read_network(study, net)
         except DataError as exc:
             errors += exc.findings
             continue
@@ -136,6 +153,31 @@ def _read_all(study: StudyConfig, progress: Progress, *, skip: Iterable[str] = (
     if errors:
         raise DataError(errors)
     return cleaned
+
+
+def _two_mode_config(study: StudyConfig, network_id: str) -> NetworkConfig:
+    return next(net for net in study.two_mode if net.id == network_id)
+
+
+def _two_mode_inputs(study: StudyConfig, analyses: list[NetworkAnalysis], progress: Progress
+                     ) -> list[TwoModeInput]:
+    """Each two-mode network read, analysed and drawn; cheap beside its projections, so it is
+    not cached."""
+    inputs = []
+    for net in study.two_mode:
+        analysis = analyse_two_mode(read_two_mode(study, net), seed=study.seed)
+        projected = {a.network_id.removeprefix(f"{net.id}-"): len(a.edges) > 0
+                     for a in analyses if a.network_id in {f"{net.id}-{m}" for m in net.modes}}
+        files = tuple(study.relative(p) for p in (net.data_file, net.nodes) if p is not None)
+        inputs.append(TwoModeInput(analysis=analysis, figures=[draw_two_mode(analysis)],
+                                   files=files, projected=projected))
+        for mode, tied in projected.items():
+            if not tied:
+                progress.warn(f"{net.id}: no two {mode} nodes share a node of the other mode, so "
+                              f"the projection {net.id}-{mode} has no ties")
+        progress.stage("analyse", f"{net.id}: two-mode, projections "
+                       f"{', '.join(f'{net.id}-{m}' for m in net.modes)}")
+    return inputs
 
 
 def read_notes(study: StudyConfig) -> tuple[dict[str, str], str | None]:
@@ -363,8 +405,20 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if cache is not None:
                 cache.store_files(keys[net.id], downloads)
         files.update(downloads)
+    two_mode: list[TwoModeInput] = []
+    if partner is None:
+        two_mode = _two_mode_inputs(study, analyses, progress)
+    elif study.two_mode:  # its ids and labels come straight from the files, unprotected
+        progress.warn("the two-mode networks' own pages and files are left out of partner "
+                      "copies; their projections are included, protected as every network is")
+    for two in two_mode:
+        files.update(two_mode_files(two.analysis))
+        for figure in two.figures:
+            base = f"networks/{two.id}/figures/{figure.name}"
+            files[base + ".svg"] = figure.svg
+            files[base + ".png"] = figure.png
     series = study_series(study, analyses, progress)
-    resources = []
+    resources = [r for two in two_mode for r in two_mode_resources(two.analysis)]
     by_id = {a.network_id: a for a in analyses}
     for compared in series:
         name = compared.comparison.series
@@ -382,7 +436,8 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
         reuse.networks = shown
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
                         reuse=reuse, partner=partner,
-                        sizes={path: len(data) for path, data in files.items()}, series=series)
+                        sizes={path: len(data) for path, data in files.items()},
+                        series=series, two_mode=two_mode)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     return files

@@ -6,7 +6,7 @@ import difflib
 import math
 import re
 import sys
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any, Literal
 
@@ -32,6 +32,7 @@ __all__ = [
     "SiteConfig",
     "StudyConfig",
     "load_study",
+    "projections",
 ]
 
 STUDY_FILE = "study.toml"
@@ -76,8 +77,9 @@ NetworkSource = EdgeListSource | MatrixSource
 NETWORK_KEYS = (
     "id", "title", "edges", "matrix", "nodes", "node_id", "label", "source", "target", "directed",
     "weight", "weight_means", "duplicates", "two_mode", "modes", "series", "wave", "color_by",
-    "size_by", "delimiter", "decimal", "categorical", "numeric",
+    "size_by", "delimiter", "decimal", "categorical", "numeric", "projection",
 )
+PROJECTIONS = ("shared", "newman")  # how a two-mode network's projections weigh their ties
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -105,6 +107,11 @@ class NetworkConfig:
     # (a column of plainly written numbers is numeric).
     categorical: tuple[str, ...] = ()
     numeric: tuple[str, ...] = ()
+    projection: str = "shared"  # two-mode: "shared" (count of shared nodes) or "newman"
+    # A projection of a two-mode network onto one of its modes: the two-mode network's id and
+    # the mode. Its data are the two-mode network's files; it is analysed as any one-mode network.
+    projected_from: str | None = None
+    projected_mode: str | None = None
 
     @property
     def data_file(self) -> Path:
@@ -175,7 +182,8 @@ class StudyConfig:
     summary: Path | None = None
     seed: int = DEFAULT_SEED
     output: Path
-    networks: tuple[NetworkConfig, ...] = ()
+    networks: tuple[NetworkConfig, ...] = ()  # one-mode networks, with two-mode projections
+    two_mode: tuple[NetworkConfig, ...] = ()  # two-mode networks, each with its page and files
     communities: CommunitiesConfig = field(default_factory=CommunitiesConfig)
     significance: SignificanceConfig = field(default_factory=SignificanceConfig)
     measures: MeasuresConfig = field(default_factory=MeasuresConfig)
@@ -305,9 +313,12 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     if len(modes) != 2 or not all(isinstance(m, str) and m for m in modes):
         raise ConfigError("must be a list of two names", key=f"{dotted}.modes")
     two_mode = t.get("two_mode", bool, False)
+    projection = t.choice("projection", PROJECTIONS, "shared")
     if two_mode:
-        raise ConfigError("two-mode networks are not supported by this version of netfolio yet",
-                          key=f"{dotted}.two_mode")
+        _check_two_mode(t, modes, dotted)
+    elif "projection" in data:
+        raise ConfigError("'projection' applies only to two-mode networks (two_mode = true)",
+                          key=f"{dotted}.projection")
     weight = t.get("weight", str)
     if matrix is not None and (weight is not None or "source" in data or "target" in data):
         raise ConfigError("'weight', 'source' and 'target' name edge-list columns; an adjacency "
@@ -375,6 +386,7 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
         decimal=decimal,
         categorical=categorical,
         numeric=numeric,
+        projection=projection,
     )
 
 
@@ -390,6 +402,31 @@ def _column_list(t: _Table, name: str) -> tuple[str, ...]:
     if repeated:
         raise ConfigError(f"names '{repeated[0]}' twice", key=key)
     return tuple(values)
+
+
+def _check_two_mode(t: _Table, modes: list[str], dotted: str) -> None:
+    if t.get("directed", bool, False):
+        raise ConfigError("a two-mode network's ties join a node of one mode to a node of the "
+                          "other and have no direction; remove 'directed'",
+                          key=f"{dotted}.directed")
+    for mode in modes:
+        if not _ID.fullmatch(mode):
+            raise ConfigError(f"mode name '{mode}' may hold only a-z, 0-9 and '-' (it names the "
+                              "projection's page)", key=f"{dotted}.modes")
+    if modes[0] == modes[1]:
+        raise ConfigError(f"the two modes need different names, got '{modes[0]}' twice",
+                          key=f"{dotted}.modes")
+
+
+def projections(net: NetworkConfig) -> tuple[NetworkConfig, NetworkConfig]:
+    """The one-mode networks a two-mode network projects onto, one per mode, with the id
+    ``<id>-<mode>``. Their ties are strengths; colour and size settings stay with the two-mode
+    network, since its attributes may belong to either mode."""
+    return tuple(  # type: ignore[return-value]
+        replace(net, id=f"{net.id}-{mode}", title=f"{net.title}: {mode} projection",
+                two_mode=False, directed=False, weight_means="strength", color_by=None,
+                size_by=None, series=None, wave=None, projected_from=net.id, projected_mode=mode)
+        for mode in net.modes)
 
 
 _TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site")
@@ -430,18 +467,23 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     networks_raw = raw.get("network", [])
     if not isinstance(networks_raw, list) or not networks_raw:
         raise ConfigError("at least one [[network]] table is required", key="network")
-    networks = tuple(_network(root, data, i) for i, data in enumerate(networks_raw))
+    written = tuple(_network(root, data, i) for i, data in enumerate(networks_raw))
     seen: dict[str, int] = {}
-    for i, net in enumerate(networks):
-        if net.id in seen:
-            raise ConfigError(f"id '{net.id}' is already used by network[{seen[net.id] + 1}]",
-                              key=f"network[{i + 1}].id")
-        seen[net.id] = i
+    for i, net in enumerate(written):
+        for net_id in (net.id, *(p.id for p in projections(net) if net.two_mode)):
+            if net_id in seen:
+                what = "id" if net_id == net.id else "projection id"
+                raise ConfigError(f"{what} '{net_id}' is already used by network[{seen[net_id] + 1}]",
+                                  key=f"network[{i + 1}].id")
+            seen[net_id] = i
+    networks = tuple(p for net in written for p in (projections(net) if net.two_mode else (net,)))
+    two_mode = tuple(net for net in written if net.two_mode)
+    for net in written:
         for data_path in (net.data_file, net.nodes):
             if data_path is not None and data_path.is_relative_to(output):
                 raise ConfigError(f"'{data_path.relative_to(root)}' lies inside the output folder",
                                   key="study.output")
-    _check_waves(networks)
+    _check_waves(written)
 
     c = _Table(raw.get("communities", {}), "communities", ("method", "resolution", "runs"))
     resolution = c.get("resolution", float, 1.0)
@@ -478,6 +520,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         seed=s.get("seed", int, DEFAULT_SEED),
         output=output,
         networks=networks,
+        two_mode=two_mode,
         communities=CommunitiesConfig(
             method=c.choice("method", COMMUNITY_METHODS, "leiden"),
             resolution=resolution,

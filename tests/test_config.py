@@ -296,9 +296,19 @@ def test_size_by_must_name_a_node_measure(tmp_path):
     assert "did you mean 'pagerank'?" in str(error)
 
 
-def test_two_mode_networks_are_refused_for_now(tmp_path):
-    error = config_error(study_with(tmp_path, networks=[net(two_mode=True)]))
-    assert error.key == "network[1].two_mode"
+def test_two_mode_network_becomes_two_projections_and_its_settings_are_checked(tmp_path):
+    study = load_study(study_with(tmp_path / "a", networks=[
+        net(id="tm", two_mode=True, modes=["staff", "session"], projection="newman")]))
+    assert [n.id for n in study.two_mode] == ["tm"]
+    assert [(n.id, n.projected_from, n.projected_mode, n.projection) for n in study.networks] == [
+        ("tm-staff", "tm", "staff", "newman"), ("tm-session", "tm", "session", "newman")]
+    error = config_error(study_with(tmp_path / "b", networks=[net(two_mode=True, directed=True)]))
+    assert error.key == "network[1].directed"
+    error = config_error(study_with(tmp_path / "c", networks=[net(projection="shared")]))
+    assert error.key == "network[1].projection"
+    error = config_error(study_with(tmp_path / "d", networks=[
+        net(id="a-b", title="x"), net(id="a", two_mode=True, modes=["b", "c"])]))
+    assert error.key == "network[2].id" and "'a-b'" in str(error)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import json
 import math
-from collections.abc import Mapping, Sequence
+from collections.abc import Mapping
 from typing import Any
 
 import networkx as nx
@@ -156,10 +156,10 @@ def _fields(frame: pd.DataFrame, described: dict[str, str]) -> list[dict[str, st
 
 
 def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
-                     extra: Sequence[dict[str, Any]] = ()) -> bytes:
+                     extra: list[dict[str, Any]] | None = None) -> bytes:
     """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV;
-    ``extra`` adds the resources of files beyond the networks' own (the series of waves)."""
-    resources = []
+    ``extra`` resources (those of two-mode networks) come first."""
+    resources = list(extra or [])
     for a in analyses:
         nodes = node_table(a)
         described = {"id": "Node id as written in the input.", "label": "Display label."}
@@ -193,7 +193,6 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
         if a.significance.tests:
             resources.append(_significance_resource(a))
         resources += [_mixing_resource(a, file, table) for file, table in mixing_files(a).items()]
-    resources += list(extra)
     descriptor = {"profile": "tabular-data-package", "name": "netfolio-study", "title": title,
                   "resources": resources}
     return (json.dumps(descriptor, indent=2, ensure_ascii=False) + "\n").encode("utf-8")

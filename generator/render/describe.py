@@ -55,6 +55,9 @@ def weights_sentence(config: NetworkConfig, analysis: NetworkAnalysis) -> str:
         return "Ties are unweighted: every tie counts the same (strength 1, path length 1)."
     source = (f"the column '{config.weight}'" if config.weight is not None
               else "the cells of the adjacency matrix")
+    if config.projected_mode is not None:
+        source = (f"the projection of the two-mode network '{config.projected_from}' onto its "
+                  f"{config.projected_mode} nodes ({config.projection} weighting)")
     if analysis.weight_means == "strength":
         return (f"Tie weights come from {source} and are read as strengths: a bigger weight is a "
                 "stronger tie, and a tie's path length is 1/weight.")

@@ -158,6 +158,7 @@ class DownloadsPage:
     page: PageFrame
     networks: tuple[NetworkDownloads, ...]
     site_files: tuple[DownloadFile, ...]
+    two_mode: tuple[object, ...] = ()  # the two-mode networks' files (render.two_mode_page)
 
 
 def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],

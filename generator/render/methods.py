@@ -126,6 +126,11 @@ def reference_entries(references: Iterable[Reference], *, link_dois: bool = True
 def _cleaning(item: NetworkPageInput, relative: dict[str, str]) -> tuple[str, ...]:
     config, analysis = item.config, item.analysis
     data = relative.get("data", "")
+    if config.projected_mode is not None:
+        return (f"This network is the projection of the two-mode network "
+                f"'{config.projected_from}' (read from {data}) onto its {config.projected_mode} "
+                "nodes; how it was read, cleaned and projected is in that network's section on "
+                "this page.",)
     if isinstance(config.data, EdgeListSource):
         source = config.data
         weight = f", weight '{source.weight}'" if source.weight else ""
@@ -269,6 +274,7 @@ class MethodsPage:
     page: PageFrame
     networks: tuple[NetworkMethods, ...]
     references: tuple[ReferenceEntry, ...]
+    two_mode: tuple[object, ...] = ()  # the two-mode networks' sections (render.two_mode_page)
 
 
 def methods_context(frame: PageFrame, networks: list[NetworkPageInput],

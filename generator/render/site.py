@@ -5,7 +5,7 @@ from __future__ import annotations
 import hashlib
 import json
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from markupsafe import Markup
 
@@ -41,6 +41,7 @@ from .site_map import (
     page_href,
 )
 from .theme import load_theme
+from .two_mode_page import TwoModeInput, two_mode_downloads, two_mode_methods, two_mode_page
 
 __all__ = ["NotePage", "PageReuse", "PartnerCopy", "RenderedNotes", "SharingPage", "render_notes",
            "render_site"]
@@ -132,7 +133,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                 link_dois: bool = True, reuse: PageReuse | None = None,
                 partner: PartnerCopy | None = None,
                 sizes: Mapping[str, int] | None = None,
-                series: Sequence[SeriesInput] = ()) -> dict[str, bytes]:
+                series: Sequence[SeriesInput] = (),
+                two_mode: Sequence[TwoModeInput] = ()) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -145,7 +147,9 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     ``partner`` makes a partner copy: every page says so in its header, and ``sharing.html``
     holds its terms and cautions.
     ``sizes`` maps the path of each download and figure to its size in bytes, for the downloads
-    page. ``series`` holds the comparison of every series of two or more waves.
+    page. ``series`` holds the comparison of every series of two or more waves. ``two_mode``
+    are the two-mode networks: each gets its page and its sections of the
+    methods and downloads pages (their projections are among ``networks``).
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -158,6 +162,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         version=build_info.get("netfolio", ""),
         notice=partner.notice if partner is not None else "",
         series=[(s.comparison.series, series_title(s.comparison.series)) for s in series],
+        two_mode=[(item.id, item.title) for item in two_mode],
     )
     terms = None
     if partner is not None and partner.terms is not None:
@@ -214,9 +219,14 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         pages.append((path, "compare.html", compare_context(
             compared, by_id, site.frame(path, series_title(compared.comparison.series)))))
 
+    for two in two_mode:
+        path = network_page(two.id)
+        pages.append((path, "two_mode.html", two_mode_page(two, site.frame(path, two.title))))
     if not keep(METHODS, every_network):
-        pages.append((METHODS, "methods.html", methods_context(
-            site.frame(METHODS, "Methods"), networks, files_as_written, link_dois=link_dois)))
+        frame = site.frame(METHODS, "Methods")
+        pages.append((METHODS, "methods.html", replace(methods_context(
+            frame, networks, files_as_written, link_dois=link_dois),
+            two_mode=tuple(two_mode_methods(two, frame) for two in two_mode))))
     note_findings = written.findings if notes or summary is not None else None
     if terms is not None:  # the terms are often a note too: each finding is listed once
         note_findings = tuple(dict.fromkeys((*(note_findings or ()), *terms.findings)))
@@ -225,9 +235,10 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
     if not keep(DOWNLOADS, every_network, sorted((sizes or {}).items())):
-        pages.append((DOWNLOADS, "downloads.html",
-                      downloads_context(site.frame(DOWNLOADS, "Downloads"), networks, node_files,
-                                        sizes)))
+        frame = site.frame(DOWNLOADS, "Downloads")
+        pages.append((DOWNLOADS, "downloads.html", replace(
+            downloads_context(frame, networks, node_files, sizes),
+            two_mode=tuple(two_mode_downloads(two, frame, sizes or {}) for two in two_mode))))
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)

@@ -111,8 +111,10 @@ class SiteMap:
 
     def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
                  notes: list[tuple[str, str]], version: str, notice: str = "",
-                 series: list[tuple[str, str]] | None = None):
+                 series: list[tuple[str, str]] | None = None,
+                 two_mode: list[tuple[str, str]] | None = None):
         self.study_title = study_title
+        self.two_mode = two_mode or []  # (id, title) of two-mode networks, listed first
         self.networks = networks  # (id, title) in study order
         self.series = series or []  # (series, title) of every series with two or more waves
         self.notes = notes  # (stem, title), sorted by stem
@@ -128,6 +130,7 @@ class SiteMap:
             return Link(label, page_href(path, target), current)
 
         nav = [link("Overview", INDEX)]
+        nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.two_mode]
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
         nav += [link(series_title, compare_page(name)) for name, series_title in self.series]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]

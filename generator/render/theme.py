@@ -32,10 +32,17 @@ _THEME_KEY = "site.theme"
 def _packaged_root() -> Traversable:
     """The themes folder: inside the installed package (``generator.themes``), or, when the code
     runs straight from a source checkout, the ``themes/`` folder beside ``generator/``."""
+    # A source checkout's own themes come first: an editable install of another checkout maps
+    # ``generator.themes`` to that checkout's folder, whose templates may not match this code.
+    checkout = Path(__file__).resolve().parents[2]
+    project = checkout / "pyproject.toml"
+    if ((checkout / "themes" / "default").is_dir() and project.is_file()
+            and 'name = "netfolio"' in project.read_text(encoding="utf-8")):
+        return checkout / "themes"
     try:
         return resources.files("generator.themes")
     except ModuleNotFoundError:
-        return Path(__file__).resolve().parents[2] / "themes"
+        return checkout / "themes"
 
 
 def packaged_themes() -> list[str]:

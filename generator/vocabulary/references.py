@@ -37,6 +37,8 @@ _ALL = [
     Reference("opsahl2010", "Opsahl, T., Agneessens, F. & Skvoretz, J.: Node centrality in weighted "
               "networks: generalizing degree and shortest paths. Social Networks 32(3):245-251, 2010.",
               "10.1016/j.socnet.2010.03.006"),
+    Reference("borgatti1997", "Borgatti, S. P. & Everett, M. G.: Network analysis of 2-mode data. "
+              "Social Networks 19(3):243-269, 1997.", "10.1016/S0378-8733(96)00301-2"),
     Reference("newman2001", "Newman, M. E. J.: Scientific collaboration networks. II. Shortest paths, "
               "weighted networks, and centrality. Physical Review E 64:016132, 2001.",
               "10.1103/PhysRevE.64.016132"),
