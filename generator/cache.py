@@ -29,12 +29,15 @@ import pandas as pd
 
 from . import __version__
 from .analyse import (
+    AttributeComparison,
+    CommunityProfile,
     CommunityResult,
     NetworkAnalysis,
     NullTest,
     Omission,
     PathSampling,
     SignificanceResult,
+    StabilityResult,
     Statistic,
 )
 from .analyse.provenance import library_versions
@@ -57,7 +60,7 @@ __all__ = [
 T = TypeVar("T")
 CACHE_DIR = ".netfolio-cache"
 FORMAT = "netfolio-cache"
-FORMAT_VERSION = 2
+FORMAT_VERSION = 3
 # The Cache Directory Tagging Specification's tag: backup tools skip the folder, and clean knows
 # netfolio made it.
 CACHE_TAG = "CACHEDIR.TAG"
@@ -183,7 +186,22 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "findings": [_record(f) for f in analysis.findings],
         "versions": [[k, v] for k, v in analysis.versions.items()],
         "significance": _significance_to_json(analysis.significance),
+        "stability": _record(analysis.stability),
+        "community_profiles": [_record(c) for c in analysis.community_profiles],
+        "attribute_comparisons": [_record(c) for c in analysis.attribute_comparisons],
     }
+
+
+def _stability_from_json(data: dict[str, Any]) -> StabilityResult:
+    together = data["together"]
+    return StabilityResult(**{**data, "confidence": tuple(float(v) for v in data["confidence"]),
+                              "together": None if together is None else
+                              tuple(tuple(int(v) for v in row) for row in together)})
+
+
+def _comparison_from_json(data: dict[str, Any]) -> AttributeComparison:
+    return AttributeComparison(**{**data, "values": tuple(data["values"]),
+                                  "counts": tuple(tuple(row) for row in data["counts"])})
 
 
 def _significance_to_json(result: SignificanceResult) -> dict[str, Any]:
@@ -218,6 +236,10 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
         findings=tuple(Finding(**f) for f in data["findings"]),
         versions={str(k): str(v) for k, v in data["versions"]},
         significance=_significance_from_json(data["significance"]),
+        stability=_stability_from_json(data["stability"]),
+        community_profiles=tuple(CommunityProfile(**c) for c in data["community_profiles"]),
+        attribute_comparisons=tuple(_comparison_from_json(c)
+                                    for c in data["attribute_comparisons"]),
     )
 
 

@@ -153,7 +153,7 @@ def _contingency(a: Sequence[object], b: Sequence[object]) -> tuple[Counter[tupl
                                                                     Counter[object],
                                                                     Counter[object]]:
     if len(a) != len(b):
-        raise ValueError(f"partitions of {len(a)} and {len(b)} nodes cannot be compared")
+        raise ValueError(f"unequal lengths: {len(a)}, {len(b)}")
     return Counter(zip(a, b)), Counter(a), Counter(b)
 
 

@@ -26,6 +26,7 @@ from .formatting import (
 )
 from .measures import (
                          COMMUNITY,
+                         COMMUNITY_CONFIDENCE,
                          HISTOGRAM_MEASURES,
                          MEASURE_NAMES,
                          MEASURES,
@@ -69,6 +70,7 @@ from .statistics import (
 
 __all__ = [
     "COMMUNITY",
+    "COMMUNITY_CONFIDENCE",
     "COMMUNITY_METHODS",
     "DIGITS",
     "HISTOGRAM_MEASURES",
