@@ -143,7 +143,7 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
             samples=significance.null_samples if significance else 0, seed=seed,
             progress=progress),
         stability=stability,
-        community_profiles=community_profiles(undirected, found.membership),
+        community_profiles=community_profiles(undirected, found.membership, stability.confidence),
         attribute_comparisons=compared,
     )
 

@@ -346,7 +346,8 @@ class CommunityProfile:
     ``density`` is internal / (size (size - 1) / 2), None for a single node. ``conductance`` is
     external / min(vol(S), vol(rest)), where vol sums the degrees of a set (Fortunato 2010;
     networkx ``conductance``); None when either volume is 0 (an isolate, or one community holding
-    every tie).
+    every tie). ``confidence`` is the mean community confidence of the members (see
+    ``StabilityResult``), None when no perturbed reruns ran.
     """
 
     community: int
@@ -355,11 +356,17 @@ class CommunityProfile:
     external: int
     density: float | None
     conductance: float | None
+    confidence: float | None = None
 
 
-def community_profiles(undirected: ig.Graph, membership: Sequence[int]
-                       ) -> tuple[CommunityProfile, ...]:
-    """The profile of every community 1..k of ``membership`` (vertex i in ``membership[i]``)."""
+def community_profiles(undirected: ig.Graph, membership: Sequence[int],
+                       confidence: Sequence[float] = ()) -> tuple[CommunityProfile, ...]:
+    """The profile of every community 1..k of ``membership`` (vertex i in ``membership[i]``);
+    ``confidence`` (one per vertex, or empty) gives each community its members' mean."""
+    summed: dict[int, float] = {}
+    for c, value in zip(membership, confidence):
+        summed.setdefault(c, 0.0)
+        summed[c] += value
     k = max(membership, default=0)
     size = Counter(membership)
     internal: Counter[int] = Counter()
@@ -380,7 +387,8 @@ def community_profiles(undirected: ig.Graph, membership: Sequence[int]
         profiles.append(CommunityProfile(
             community=c, size=s, internal=internal[c], external=external[c],
             density=internal[c] / (s * (s - 1) / 2) if s > 1 else None,
-            conductance=external[c] / smaller if smaller > 0 else None))
+            conductance=external[c] / smaller if smaller > 0 else None,
+            confidence=summed.get(c, 0.0) / s if confidence else None))
     return tuple(profiles)
 
 

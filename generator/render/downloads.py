@@ -14,6 +14,7 @@ from ..vocabulary import (
     file_size,
     measure,
 )
+from ..vocabulary.communities import community_columns
 from .describe import weight_reading
 from .inputs import NetworkPageInput
 from .site_map import ALL_DATA, DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
@@ -127,6 +128,12 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
                         f"against {count_of(tested.samples, 'network')} rewired at random with "
                         "the same degrees (the Methods page says how), at full precision.",
                         tuple(ColumnInfo(n, text) for n, text in SIGNIFICANCE_COLUMNS)),)
+    files += (entry("communities.csv", "One row per community: its size, internal and "
+                    "external ties, internal density, conductance"
+                    + (" and the mean confidence of its members under perturbed data"
+                       if item.analysis.stability.ran else "") + ", at full precision.",
+                    tuple(ColumnInfo(n, text) for n, text in community_columns(
+                        with_confidence=item.analysis.stability.ran))),)
     figures = tuple(FigureDownload(
         title=f.title,
         svg_path=figure_file(item.id, f.name, "svg"),
