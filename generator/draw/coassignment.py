@@ -56,7 +56,7 @@ def draw_coassignment(analysis: NetworkAnalysis) -> Figure | None:
         bar = fig.colorbar(image, ax=ax, fraction=0.046, pad=0.03)
         bar.set_label("share of perturbed reruns together", fontsize=8)
         bar.ax.tick_params(labelsize=8)
-        svg, png = figure_bytes(fig)
+        svg, png = figure_bytes(fig, crop=True)  # the square plot leaves margins
     robustness = ("" if stability.robustness_ari is None else
                   f" The mean adjusted Rand index with the kept communities is "
                   f"{number(stability.robustness_ari)}.")
