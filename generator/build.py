@@ -87,6 +87,14 @@ class Progress:
                 self.step("significance", f"{network_id}: {done}/{total} samples")
         return report
 
+    def perturbations(self, network_id: str) -> Callable[[int, int], None]:
+        """Reports community reruns on perturbed ties done for one network, each quarter of
+        the way."""
+        def report(done: int, total: int) -> None:
+            if done == total or done % max(1, total // 4) == 0:
+                self.step("stability", f"{network_id}: {done}/{total} perturbed reruns")
+        return report
+
 
 @dataclass
 class BuildResult:
@@ -351,7 +359,8 @@ def study_analyses(study: StudyConfig, keys: dict[str, str], progress: Progress,
             analysis = analyse_network(cleaned[net.id], communities=study.communities,
                                        measures=study.measures, seed=study.seed,
                                        significance=study.significance,
-                                       progress=progress.samples(net.id))
+                                       progress=progress.samples(net.id),
+                                       stability_progress=progress.perturbations(net.id))
             cache.store_analysis(keys[net.id], analysis)
             progress.stage("analyse", f"{net.id}: "
                            f"{count_of(len(analysis.measures.columns), 'measure')}, "

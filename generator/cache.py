@@ -29,6 +29,8 @@ import pandas as pd
 
 from . import __version__
 from .analyse import (
+    AttributeComparison,
+    CommunityProfile,
     CommunityResult,
     GroupMixing,
     MixingTable,
@@ -37,6 +39,7 @@ from .analyse import (
     Omission,
     PathSampling,
     SignificanceResult,
+    StabilityResult,
     Statistic,
 )
 from .analyse.provenance import library_versions
@@ -59,14 +62,14 @@ __all__ = [
 T = TypeVar("T")
 CACHE_DIR = ".netfolio-cache"
 FORMAT = "netfolio-cache"
-FORMAT_VERSION = 3
+FORMAT_VERSION = 4
 # The Cache Directory Tagging Specification's tag: backup tools skip the folder, and clean knows
 # netfolio made it.
 CACHE_TAG = "CACHEDIR.TAG"
 _TAG_TEXT = ("Signature: 8a477f597d28d172789f06886806bc55\n"
              "# This folder holds netfolio's cache of results; netfolio clean removes it.\n")
 # Bumped whenever figures are drawn differently for the same analysis and settings.
-FIGURE_STYLE = 2
+FIGURE_STYLE = 3
 
 
 # ---------------------------------------------------------------------------------------------
@@ -188,7 +191,22 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "mixing": [{**_record(t), "per_group": [_record(g) for g in t.per_group]}
                    for t in analysis.mixing],
         "listed_nodes": analysis.listed_nodes,
+        "stability": _record(analysis.stability),
+        "community_profiles": [_record(c) for c in analysis.community_profiles],
+        "attribute_comparisons": [_record(c) for c in analysis.attribute_comparisons],
     }
+
+
+def _stability_from_json(data: dict[str, Any]) -> StabilityResult:
+    together = data["together"]
+    return StabilityResult(**{**data, "confidence": tuple(float(v) for v in data["confidence"]),
+                              "together": None if together is None else
+                              tuple(tuple(int(v) for v in row) for row in together)})
+
+
+def _comparison_from_json(data: dict[str, Any]) -> AttributeComparison:
+    return AttributeComparison(**{**data, "values": tuple(data["values"]),
+                                  "counts": tuple(tuple(row) for row in data["counts"])})
 
 
 def _significance_to_json(result: SignificanceResult) -> dict[str, Any]:
@@ -228,6 +246,10 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
             "per_group": tuple(GroupMixing(**g) for g in t["per_group"])})
             for t in data["mixing"]),
         listed_nodes=data["listed_nodes"],
+        stability=_stability_from_json(data["stability"]),
+        community_profiles=tuple(CommunityProfile(**c) for c in data["community_profiles"]),
+        attribute_comparisons=tuple(_comparison_from_json(c)
+                                    for c in data["attribute_comparisons"]),
     )
 
 

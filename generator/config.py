@@ -47,6 +47,8 @@ DEFAULT_SEED = 1
 DEFAULT_OUTPUT = "output"
 DEFAULT_RUNS = 20
 DEFAULT_NULL_SAMPLES = 200
+DEFAULT_PERTURBATIONS = 50
+DEFAULT_PERTURB_SHARE = 0.1
 DEFAULT_EXACT_PATHS_UP_TO = 5000
 DEFAULT_PATH_SAMPLE_SOURCES = 500
 
@@ -136,6 +138,8 @@ class CommunitiesConfig:
     method: str = "leiden"
     resolution: float = 1.0
     runs: int = DEFAULT_RUNS
+    perturbations: int = DEFAULT_PERTURBATIONS  # reruns on the network with ties removed; 0 = off
+    perturb_share: float = DEFAULT_PERTURB_SHARE  # share of the ties each rerun removes
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -449,7 +453,23 @@ def load_study(project: Path | str) -> StudyConfig:
         return _study(root, raw)
     except ConfigError as exc:
         exc.path = path
+        if exc.locate and exc.line is None and exc.key:
+            exc.line = _key_line(path.read_text(encoding="utf-8-sig"), exc.key)
         raise
+
+
+def _key_line(text: str, dotted: str) -> int | None:
+    """The line (from 1) of study.toml where ``table.key`` is set, as an editor counts it; None
+    when it cannot be found (a key set in an inline table, say)."""
+    table, _, key = dotted.rpartition(".")
+    inside = table == ""
+    for number, raw in enumerate(text.splitlines(), start=1):
+        line = raw.split("#", 1)[0].strip()
+        if line.startswith("["):
+            inside = line.strip("[] ") == table
+        elif inside and line.partition("=")[0].strip().strip('"\'') == key and "=" in line:
+            return number
+    return None
 
 
 def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
@@ -485,10 +505,12 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
                                   key="study.output")
     _check_waves(written)
 
-    c = _Table(raw.get("communities", {}), "communities", ("method", "resolution", "runs"))
+    c = _Table(raw.get("communities", {}), "communities",
+               ("method", "resolution", "runs", "perturbations", "perturb_share"))
     resolution = c.get("resolution", float, 1.0)
     if not (math.isfinite(resolution) and resolution > 0):
         raise ConfigError(f"must be above 0, got {resolution}", key="communities.resolution")
+    perturbations, perturb_share = _perturbation_settings(c)
     g = _Table(raw.get("significance", {}), "significance", ("null_samples",))
     m = _Table(raw.get("measures", {}), "measures", ("exact_paths_up_to", "path_sample_sources"))
     sh = _Table(raw.get("sharing", {}), "sharing",
@@ -525,6 +547,8 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
             method=c.choice("method", COMMUNITY_METHODS, "leiden"),
             resolution=resolution,
             runs=c.positive_int("runs", DEFAULT_RUNS),
+            perturbations=perturbations,
+            perturb_share=perturb_share,
         ),
         significance=SignificanceConfig(
             null_samples=g.positive_int("null_samples", DEFAULT_NULL_SAMPLES, minimum=0)),
@@ -544,6 +568,23 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
                         allow_html=si.get("allow_html", bool, False),
                         node_views=si.get("node_views", bool, None)),
     )
+
+
+def _perturbation_settings(c: _Table) -> tuple[int, float]:
+    """``[communities] perturbations`` (a whole number, 0 or more; 0 turns it off) and
+    ``perturb_share`` (in [0, 1)); an error names the line of study.toml and the value."""
+    perturbations = c.data.get("perturbations", DEFAULT_PERTURBATIONS)
+    if isinstance(perturbations, bool) or not isinstance(perturbations, int) or perturbations < 0:
+        raise ConfigError(f"must be a whole number, 0 or more (0 turns the perturbed reruns "
+                          f"off), got {_describe(perturbations)}",
+                          key="communities.perturbations", locate=True)
+    share = c.data.get("perturb_share", DEFAULT_PERTURB_SHARE)
+    if (isinstance(share, bool) or not isinstance(share, (int, float))
+            or not (math.isfinite(share) and 0 <= share < 1)):
+        raise ConfigError(f"must be a number from 0 up to (not including) 1, the share of ties "
+                          f"each perturbed rerun removes; got {_describe(share)}",
+                          key="communities.perturb_share", locate=True)
+    return perturbations, float(share)
 
 
 def _sharing_terms(root: Path, raw: str | None) -> Path | None:

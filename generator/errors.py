@@ -29,13 +29,18 @@ class ConfigError(NetfolioError):
 
     exit_code = 1
 
-    def __init__(self, message: str, *, key: str | None = None, path: Path | None = None):
+    def __init__(self, message: str, *, key: str | None = None, path: Path | None = None,
+                 line: int | None = None, locate: bool = False):
         super().__init__(message)
         self.key = key
         self.path = path
+        self.line = line  # the line of study.toml holding the key, when known
+        self.locate = locate  # the loader should find the key's line in study.toml
 
     def format_message(self) -> str:
         where = f"{self.path.name}: " if self.path else ""
+        if self.path and self.line:
+            where = f"{self.path.name}, line {self.line}: "
         key = f"[{self.key}] " if self.key else ""
         return f"{where}{key}{self.args[0]}"
 

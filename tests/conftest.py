@@ -36,6 +36,9 @@ def toml_value(value: Any) -> str:
 # Test studies run no tests against rewired networks unless they ask: 200 rewired networks and
 # their figures cost seconds per build. ``null_samples=None`` leaves the table out altogether.
 TEST_NULL_SAMPLES = 0
+# Nor do they rerun communities on perturbed ties unless they ask (``perturbations=`` or a
+# ``communities`` table that names it): 50 reruns of 20 runs cost a second per network.
+TEST_PERTURBATIONS = 0
 
 
 def study_toml(*, study: dict | None = None, networks: Sequence[dict] = (),
@@ -45,6 +48,10 @@ def study_toml(*, study: dict | None = None, networks: Sequence[dict] = (),
     study = {"title": "Invented study"} if study is None else study
     if null_samples is not None and "significance" not in (tables or {}):
         tables = {**(tables or {}), "significance": {"null_samples": null_samples}}
+    communities = (tables or {}).get("communities", {})
+    if "perturbations" not in communities:
+        tables = {**(tables or {}), "communities": {**communities,
+                                                     "perturbations": TEST_PERTURBATIONS}}
     parts = ["[study]"] + [f"{k} = {toml_value(v)}" for k, v in study.items()]
     for net in networks:
         parts += ["", "[[network]]"] + [f"{k} = {toml_value(v)}" for k, v in net.items()]
@@ -101,10 +108,12 @@ def load_network(root: Path, index: int = 0) -> CleanNetwork:
 
 def analyse(clean: CleanNetwork, *, seed: int = 1, method: str = "leiden", runs: int = 20,
             resolution: float = 1.0, exact_up_to: int = 5000,
-            sample_sources: int = 500) -> NetworkAnalysis:
+            sample_sources: int = 500, perturbations: int = TEST_PERTURBATIONS,
+            perturb_share: float = 0.1) -> NetworkAnalysis:
     return analyse_network(
         clean,
-        communities=CommunitiesConfig(method=method, resolution=resolution, runs=runs),
+        communities=CommunitiesConfig(method=method, resolution=resolution, runs=runs,
+                                      perturbations=perturbations, perturb_share=perturb_share),
         measures=MeasuresConfig(exact_paths_up_to=exact_up_to, path_sample_sources=sample_sources),
         seed=seed,
     )
@@ -135,7 +144,8 @@ def graph_study(root: Path, graph: nx.Graph, *, weight: str | None = None,
 
 def analyse_graph(root: Path, graph: nx.Graph, **kwargs: Any) -> NetworkAnalysis:
     analysis_keys = {k: kwargs.pop(k) for k in ("seed", "method", "runs", "resolution",
-                                                "exact_up_to", "sample_sources") if k in kwargs}
+                                                "exact_up_to", "sample_sources", "perturbations",
+                                                "perturb_share") if k in kwargs}
     return analyse(load_network(graph_study(root, graph, **kwargs)), **analysis_keys)
 
 

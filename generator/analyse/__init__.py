@@ -10,7 +10,17 @@ import pandas as pd
 from ..config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork
-from .communities import CommunityResult, find_communities
+from .communities import (
+    NOT_PERTURBED,
+    AttributeComparison,
+    CommunityProfile,
+    CommunityResult,
+    StabilityResult,
+    community_profiles,
+    compare_with_attribute,
+    find_communities,
+    perturbed_stability,
+)
 from .graph import build_graph, tie_strengths, undirected_version
 from .layout import network_layout
 from .measures import Omission, PathSampling, node_measures
@@ -20,6 +30,8 @@ from .provenance import library_versions
 from .statistics import Statistic, network_statistics
 
 __all__ = [
+    "AttributeComparison",
+    "CommunityProfile",
     "CommunityResult",
     "GroupMixing",
     "MixingTable",
@@ -28,6 +40,7 @@ __all__ = [
     "Omission",
     "PathSampling",
     "SignificanceResult",
+    "StabilityResult",
     "Statistic",
     "analyse_network",
     "tie_strengths",
@@ -63,6 +76,9 @@ class NetworkAnalysis:
     significance: SignificanceResult = NOT_REQUESTED  # tests against rewired networks
     mixing: tuple[MixingTable, ...] = ()  # one per categorical attribute, in column order
     listed_nodes: int | None = None  # nodes in the node list; None when there is none
+    stability: StabilityResult = NOT_PERTURBED  # communities rerun on perturbed ties
+    community_profiles: tuple[CommunityProfile, ...] = ()  # one per community, 1..k
+    attribute_comparisons: tuple[AttributeComparison, ...] = ()  # one per categorical attribute
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -75,10 +91,13 @@ class NetworkAnalysis:
 def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                     measures: MeasuresConfig, seed: int,
                     significance: SignificanceConfig | None = None,
-                    progress: Callable[[int, int], None] | None = None) -> NetworkAnalysis:
+                    progress: Callable[[int, int], None] | None = None,
+                    stability_progress: Callable[[int, int], None] | None = None
+                    ) -> NetworkAnalysis:
     """Compute every measure, statistic and the community partition of one network, and (when
     ``significance`` asks for null samples) test the statistics against rewired networks;
-    ``progress(done, samples)`` follows those tests."""
+    ``progress(done, samples)`` follows those tests, ``stability_progress(done, total)`` the
+    community reruns on perturbed ties."""
     graph = build_graph(network)
     weighted = network.weighted
     node = node_measures(graph, weighted=weighted, exact_up_to=measures.exact_paths_up_to,
@@ -87,12 +106,23 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
     found = find_communities(undirected, method=communities.method,
                              resolution=communities.resolution, runs=communities.runs, seed=seed,
                              weighted=weighted)
+    stability = perturbed_stability(
+        undirected, found.membership, method=communities.method,
+        resolution=communities.resolution, runs=communities.runs, seed=seed, weighted=weighted,
+        perturbations=communities.perturbations, share=communities.perturb_share,
+        progress=stability_progress)
     table = node.table.copy()
     table["community"] = list(found.membership)
+    if stability.ran:
+        table["community_confidence"] = list(stability.confidence)
     attributes = network.nodes[list(network.attributes)]
+    compared = tuple(compare_with_attribute(str(name), found.membership,
+                                            [None if pd.isna(v) else v for v in attributes[name]])
+                     for name in categorical_attributes(attributes))
     stats = network_statistics(graph, weighted=weighted, betweenness=list(table["betweenness"]),
                                attributes=attributes,
                                modularity=found.modularity, communities=found.count)
+    stats += community_statistics(found, stability, compared)
     return NetworkAnalysis(
         network_id=network.id,
         title=network.config.title,
@@ -119,4 +149,27 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
         mixing=tuple(mixing_table(graph, attributes[column], column)
                      for column in categorical_attributes(attributes)),
         listed_nodes=network.listed,
+        stability=stability,
+        community_profiles=community_profiles(undirected, found.membership, stability.confidence),
+        attribute_comparisons=compared,
     )
+
+
+def community_statistics(found: CommunityResult, stability: StabilityResult,
+                         compared: tuple[AttributeComparison, ...]) -> list[Statistic]:
+    """The statistics.csv rows of community stability and of communities against attributes:
+    ``community_agreement_ari`` and ``community_agreement_nmi`` (the runs against the kept
+    partition), ``community_robustness_ari`` (perturbed reruns, when they ran) and
+    ``community_attribute_nmi:<attribute>`` per categorical attribute."""
+    why = "no_ties" if found.objective is None else "trivial_partition"
+    rows = [Statistic("community_agreement_ari", found.mean_ari,
+                      None if found.mean_ari is not None else why),
+            Statistic("community_agreement_nmi", found.mean_nmi,
+                      None if found.mean_nmi is not None else why)]
+    if stability.perturbations > 0:
+        robust_why = stability.why if stability.why else (
+            None if stability.robustness_ari is not None else "trivial_partition")
+        rows.append(Statistic("community_robustness_ari", stability.robustness_ari, robust_why))
+    rows += [Statistic(f"community_attribute_nmi:{c.attribute}", c.nmi, c.why,
+                       left_out=c.left_out) for c in compared]
+    return rows

@@ -8,6 +8,7 @@ import matplotlib
 
 from ..analyse import NetworkAnalysis
 from ..vocabulary import HISTOGRAM_MEASURES
+from .coassignment import draw_coassignment
 from .community_sizes import draw_communities
 from .distributions import draw_centrality, draw_degree
 from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
@@ -25,7 +26,8 @@ def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_S
     centrality measure the analysis holds (betweenness, closeness, harmonic, eigenvector,
     pagerank; a measure left out by the analysis is left out here), then ``communities``, then
     a ``mixing-<attribute>`` heatmap per categorical attribute and a ``scatter-<attribute>`` per
-    numeric one, then one ``null-<statistic>`` per test against rewired networks.
+    numeric one, ``coassignment`` (when perturbed reruns ran and the matrix was kept; it belongs
+    to the communities page), then one ``null-<statistic>`` per test against rewired networks.
 
     The same analysis gives byte-identical SVG and PNG in any process: figures live on their own
     Agg canvases (no pyplot state), the style is applied in an ``rc_context``, the SVG hash salt
@@ -41,5 +43,8 @@ def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_S
                 if measure in analysis.measures.columns]
     figures.append(draw_communities(analysis, colours))
     figures += draw_mixing(analysis)
+    coassignment = draw_coassignment(analysis)
+    if coassignment is not None:
+        figures.append(coassignment)
     figures += draw_null_tests(analysis)
     return figures

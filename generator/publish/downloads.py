@@ -14,18 +14,20 @@ import pandas as pd
 from ..analyse import MixingTable, NetworkAnalysis
 from ..vocabulary import (
     COMMUNITY,
+    COMMUNITY_CONFIDENCE,
     PATH_MEASURES,
     SIGNIFICANCE_COLUMNS,
     community_method,
     exact_text,
     measure,
 )
+from ..vocabulary.communities import community_columns
 from ..vocabulary.mixing import mixing_csv_names
 from .archive import ZipTime, zip_bytes
 
-__all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "datapackage_json", "edges_csv", "graphml",
-           "mixing_csv", "mixing_files",
-           "network_files", "nodes_csv", "significance_csv", "statistics_csv"]
+__all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "communities_csv", "datapackage_json", "edges_csv",
+           "graphml", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
+           "significance_csv", "statistics_csv"]
 
 
 def _csv(frame: pd.DataFrame) -> bytes:
@@ -91,6 +93,33 @@ def _mixing_resource(a: NetworkAnalysis, file: str, table: MixingTable) -> dict[
             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
             "title": f"{a.title}: mixing matrix of {table.attribute}",
             "schema": {"fields": fields}}
+def _community_columns(analysis: NetworkAnalysis) -> tuple[tuple[str, str], ...]:
+    return community_columns(with_confidence=analysis.stability.ran)
+
+
+def communities_csv(analysis: NetworkAnalysis) -> bytes:
+    """One row per community of the kept partition, at full precision."""
+    names = [name for name, _ in _community_columns(analysis)]
+    rows = []
+    for p in analysis.community_profiles:
+        row = [str(p.community), str(p.size), str(p.internal), str(p.external),
+               exact_text(p.density), exact_text(p.conductance)]
+        if "confidence" in names:
+            row.append(exact_text(p.confidence))
+        rows.append(row)
+    return _csv(pd.DataFrame(rows, columns=names))
+
+
+def _communities_resource(a: NetworkAnalysis) -> dict[str, Any]:
+    types = {"community": "integer", "size": "integer", "internal_ties": "integer",
+             "external_ties": "integer"}
+    return {"name": f"{a.network_id}-communities", "path": f"{a.network_id}/communities.csv",
+            "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
+            "encoding": "utf-8", "title": f"{a.title}: one row per community",
+            "schema": {"fields": [
+                {"name": name, "type": types.get(name, "number"),
+                 "description": text[0].upper() + text[1:] + "."}
+                for name, text in _community_columns(a)], "primaryKey": ["community"]}}
 
 
 def _significance_resource(a: NetworkAnalysis) -> dict[str, Any]:
@@ -144,6 +173,10 @@ def _measure_description(name: str, analysis: NetworkAnalysis) -> str:
                 "largest.")
     entry = measure(name)
     text = f"{entry.title}: {entry.definition}"
+    if name == COMMUNITY_CONFIDENCE:
+        s = analysis.stability
+        text += (f" Over {s.perturbations} reruns, each removing {s.removed} ties "
+                 f"(share {s.share:g}), seeds from the study seed {s.seed}.")
     if analysis.sampling and name in PATH_MEASURES:
         text += (f" Estimated from {analysis.sampling.sources} sampled source nodes of "
                  f"{analysis.sampling.nodes} (Brandes & Pich 2007), seed {analysis.sampling.seed}.")
@@ -190,6 +223,7 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
                  {"name": "value", "type": "number",
                   "description": "Value; empty where not defined."}]}},
         ]
+        resources.append(_communities_resource(a))
         if a.significance.tests:
             resources.append(_significance_resource(a))
         resources += [_mixing_resource(a, file, table) for file, table in mixing_files(a).items()]
@@ -206,6 +240,7 @@ def network_files(analysis: NetworkAnalysis) -> dict[str, bytes]:
         prefix + "edges.csv": edges_csv(analysis),
         prefix + "statistics.csv": statistics_csv(analysis),
         prefix + "network.graphml": graphml(analysis),
+        prefix + "communities.csv": communities_csv(analysis),
     }
     if analysis.significance.tests:
         files[prefix + "significance.csv"] = significance_csv(analysis)

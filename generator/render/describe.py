@@ -22,6 +22,7 @@ from ..vocabulary import (
     share,
     statistic,
 )
+from ..vocabulary.communities import CONDUCTANCE_REFERENCES, PERTURBATION_REFERENCES
 
 __all__ = [
     "a_network", "measure_title", "method_title", "network_kind", "references_of",
@@ -117,6 +118,9 @@ def references_of(analysis: NetworkAnalysis) -> list[Reference]:
     if analysis.communities.objective is not None:  # the runs happened (the network has ties)
         keys += community_method(analysis.communities.method).references
         keys += STABILITY_REFERENCES
+        keys += CONDUCTANCE_REFERENCES  # the communities page profiles every community
+        if analysis.stability.ran:
+            keys += PERTURBATION_REFERENCES
     if analysis.significance.tests:
         keys += NULL_REFERENCES
     keys += LAYOUT_REFERENCES + PALETTE_REFERENCES  # the map's layout and colours

@@ -14,6 +14,7 @@ from ..vocabulary import (
     file_size,
     measure,
 )
+from ..vocabulary.communities import community_columns
 from ..vocabulary.mixing import mixing_csv_names
 from .describe import weight_reading
 from .inputs import NetworkPageInput
@@ -139,6 +140,12 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
                             ColumnInfo(table.attribute, "the row's group" + (
                                 " (the sending end)" if table.directed else "")),
                             ColumnInfo("one column per group", cells))),)
+    files += (entry("communities.csv", "One row per community: its size, internal and "
+                    "external ties, internal density, conductance"
+                    + (" and the mean confidence of its members under perturbed data"
+                       if item.analysis.stability.ran else "") + ", at full precision.",
+                    tuple(ColumnInfo(n, text) for n, text in community_columns(
+                        with_confidence=item.analysis.stability.ran))),)
     figures = tuple(FigureDownload(
         title=f.title,
         svg_path=figure_file(item.id, f.name, "svg"),

@@ -20,6 +20,7 @@ from ..vocabulary import (
     statistic,
 )
 from ..vocabulary.mixing import mixing_method_text
+from .communities_page import stability_methods
 from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
 from .inputs import NetworkPageInput
 from .mixing import isolates_text
@@ -87,6 +88,8 @@ class NetworkMethods:
     community_citations: tuple[Citation, ...]
     stability: str
     stability_citations: tuple[Citation, ...]
+    community_checks: tuple[tuple[str, tuple[Citation, ...]], ...]  # profiles, perturbations
+    perturbation_parameters: tuple[tuple[str, str], ...]
     significance: tuple[tuple[str, tuple[Citation, ...]], ...]  # paragraphs, each with its cites
     layout: str
     layout_citations: tuple[Citation, ...]
@@ -249,6 +252,12 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
                    "than chance. The share of runs that found exactly the kept partition is "
                    "reported too."),
         stability_citations=cite.cite(STABILITY_REFERENCES),
+        community_checks=tuple((text, cite.cite(keys))
+                               for text, keys in stability_methods(analysis)),
+        perturbation_parameters=(
+            ("Perturbed reruns", str(analysis.stability.perturbations)),
+            ("Share of ties removed", number(analysis.stability.share)),
+            ("Seed", str(analysis.seed))) if analysis.stability.perturbations else (),
         significance=tuple((text, cite.cite(keys)) for text, keys in significance_method(
             analysis.significance, directed=analysis.directed, weighted=analysis.weighted,
             method=method_title(analysis.communities.method), runs=analysis.communities.runs,

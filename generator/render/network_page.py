@@ -10,9 +10,11 @@ from typing import Any
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
+from ..draw.coassignment import COASSIGNMENT
 from ..draw.explorer import COMMUNITY_LEVEL, EXPLORER_MAX_NODES
 from ..vocabulary import (
     COMMUNITY,
+    COMMUNITY_CONFIDENCE,
     MEASURE_NAMES,
     PATH_MEASURES,
     Reading,
@@ -39,12 +41,21 @@ from .figures import FigureView, figure_views
 from .inputs import NetworkPageInput
 from .mixing import MixingSection, is_mixing_figure, mixing_section
 from .significance import SignificanceView, is_null_figure, significance_view
-from .site_map import CHECKS, DOWNLOADS, METHODS, PageFrame, network_file, nodes_page
+from .site_map import (
+    CHECKS,
+    DOWNLOADS,
+    METHODS,
+    PageFrame,
+    communities_page,
+    network_file,
+    nodes_page,
+)
 
 __all__ = [
     "TOP_COUNT", "CommunityRow", "CommunityView", "NetworkFacts", "NetworkLinks", "NetworkPage",
     "RankedNode", "StatisticRow",
     "TopTable", "community_view", "network_context", "network_facts", "omitted_measures",
+    "ranked_nodes",
     "sampling_sentence", "statistic_rows", "top_tables",
 ]
 
@@ -174,7 +185,7 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
     )
 
 
-def _ranked(values: list[float], labels: list[str], ids: list[str], count: int
+def ranked_nodes(values: list[float], labels: list[str], ids: list[str], count: int
             ) -> tuple[tuple[RankedNode, ...], int]:
     order = sorted((i for i, v in enumerate(values) if not math.isnan(v)),
                    key=lambda i: (-values[i], i))  # ties keep node order
@@ -193,16 +204,17 @@ def _ranked(values: list[float], labels: list[str], ids: list[str], count: int
 
 
 def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTable, ...]:
-    """The ``count`` highest nodes for every measure present (community numbers are not ranked)."""
+    """The ``count`` highest nodes for every measure present (community numbers and community
+    confidence are not ranked: the communities page shows them per community)."""
     labels = analysis.labels
     ids = [str(node) for node in analysis.nodes.index]
     measures = analysis.measures.reindex(analysis.nodes.index)
     tables = []
     for column in measures.columns:
-        if column == COMMUNITY:
+        if column in (COMMUNITY, COMMUNITY_CONFIDENCE):  # shown per community instead
             continue
         values = [float(v) if not is_missing(v) else math.nan for v in measures[column].tolist()]
-        rows, more = _ranked(values, labels, ids, count)
+        rows, more = ranked_nodes(values, labels, ids, count)
         tables.append(TopTable(column, measure_title(column), rows, more))
     return tuple(tables)
 
@@ -264,6 +276,7 @@ def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
 @dataclass(frozen=True)
 class NetworkLinks:
     nodes: str
+    communities: str
     methods: str
     checks: str
     downloads: str
@@ -338,7 +351,8 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
         map_figures=tuple(f for f in figures if f.name == "map"),
         position_figures=tuple(f for f in figures if f.name in _POSITION_FIGURES),
         community_figures=tuple(f for f in figures if f.name == "communities"),
-        other_figures=tuple(f for f in figures if f.name not in ("map", "communities")
+        other_figures=tuple(f for f in figures if f.name not in ("map", "communities",
+                                                                 COASSIGNMENT)
                             and f.name not in _POSITION_FIGURES and not is_null_figure(f.name)
                             and not is_mixing_figure(f.name)),
         top_tables=top_tables(analysis),
@@ -348,6 +362,7 @@ def network_context(item: NetworkPageInput, frame: PageFrame) -> NetworkPage:
         sampling=sampling_sentence(analysis),
         links=NetworkLinks(
             nodes=frame.href(nodes_page(item.id)),
+            communities=frame.href(communities_page(item.id)),
             methods=frame.href(f"{METHODS}#{anchor}"),
             checks=frame.href(f"{CHECKS}#{anchor}"),
             downloads=frame.href(f"{DOWNLOADS}#{anchor}"),

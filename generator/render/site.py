@@ -12,6 +12,7 @@ from markupsafe import Markup
 from ..config import StudyConfig
 from ..errors import Finding
 from .checks import checks_context
+from .communities_page import communities_context
 from .compare import SeriesInput, compare_context, series_title
 from .contents import with_contents
 from .downloads import downloads_context
@@ -32,6 +33,7 @@ from .site_map import (
     SHARING,
     PageFrame,
     SiteMap,
+    communities_page,
     compare_page,
     explorer_file,
     network_page,
@@ -210,6 +212,10 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             frame = site.frame(path, f"{item.title}: every node", section=network_page(item.id),
                                scripts=(TABLE_SCRIPT,))
             pages.append((path, "nodes.html", nodes_context(item, frame)))
+        path = communities_page(item.id)
+        if not keep(path, own):
+            frame = site.frame(path, f"{item.title}: communities", section=network_page(item.id))
+            pages.append((path, "communities.html", communities_context(item, frame)))
         if item.ego is not None:
             pages += _node_views(item, networks, site, keep, every_network)
 

@@ -8,8 +8,8 @@ from urllib.parse import quote
 
 __all__ = [
     "ALL_DATA", "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
-    "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "compare_figure", "compare_page", "explorer_file",
-    "figure_file", "network_file",
+    "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "communities_page", "compare_figure", "compare_page",
+    "explorer_file", "figure_file", "network_file",
     "network_page", "node_view", "nodes_page", "note_page", "page_href", "series_file",
 ]
 
@@ -42,6 +42,11 @@ def network_page(network_id: str) -> str:
 
 def nodes_page(network_id: str) -> str:
     return f"networks/{network_id}/nodes.html"
+
+
+def communities_page(network_id: str) -> str:
+    """One network's communities: profiles, stability and the comparison with attributes."""
+    return f"networks/{network_id}/communities.html"
 
 
 def node_view(network_id: str, position: int) -> str:
@@ -139,12 +144,14 @@ class SiteMap:
         notes = tuple(link(note_title, note_page(stem)) for stem, note_title in self.notes)
         subnav: tuple[Link, ...] = ()
         for net_id, _ in self.networks:
-            if path in (network_page(net_id), nodes_page(net_id)):
+            if path in (network_page(net_id), nodes_page(net_id), communities_page(net_id)):
                 subnav = (link("Results", network_page(net_id)),
-                          link("Every node", nodes_page(net_id)))
+                          link("Every node", nodes_page(net_id)),
+                          link("Communities", communities_page(net_id)))
             elif path.startswith(f"networks/{net_id}/nodes/"):  # a node's own page
                 subnav = (link("Results", network_page(net_id)),
-                          Link("Every node", page_href(path, nodes_page(net_id)), "true"))
+                          Link("Every node", page_href(path, nodes_page(net_id)), "true"),
+                          link("Communities", communities_page(net_id)))
         root = "../" * path.count("/")
         return PageFrame(path=path, title=title, study_title=self.study_title, root=root,
                          nav=tuple(nav), notes_nav=notes, version=self.version,

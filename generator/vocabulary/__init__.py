@@ -27,6 +27,7 @@ from .formatting import (
 from .measures import (
                          CHANGE_MEASURES,
                          COMMUNITY,
+                         COMMUNITY_CONFIDENCE,
                          HISTOGRAM_MEASURES,
                          MEASURE_NAMES,
                          MEASURES,
@@ -72,6 +73,7 @@ from .statistics import (
 
 __all__ = [
     "COMMUNITY",
+    "COMMUNITY_CONFIDENCE",
     "COMMUNITY_METHODS",
     "DIGITS",
     "CHANGE_MEASURES",

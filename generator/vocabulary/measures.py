@@ -11,6 +11,7 @@ from dataclasses import dataclass
 __all__ = [
     "COMMUNITY",
     "CHANGE_MEASURES",
+    "COMMUNITY_CONFIDENCE",
     "HISTOGRAM_MEASURES",
     "MEASURES",
     "MEASURE_NAMES",
@@ -52,6 +53,7 @@ class MeasureEntry:
 
 
 COMMUNITY = "community"
+COMMUNITY_CONFIDENCE = "community_confidence"
 
 MEASURES: tuple[MeasureEntry, ...] = (
     MeasureEntry(name="degree", title="Degree", plain="degree", whole=True,
@@ -164,6 +166,15 @@ MEASURES: tuple[MeasureEntry, ...] = (
             "largest community; equal sizes are ordered by their first member. An isolate forms a "
             "community of its own.",
             meaning="The community a node was placed in; 1 is the largest."),
+    MeasureEntry(name=COMMUNITY_CONFIDENCE, title="Community confidence",
+            plain="community confidence", sizes_nodes=False, unit="share of community members",
+            definition="Over the reruns of the community method on the network with a share of "
+            "its ties removed at random, the mean share of the other members of the node's "
+            "community that the rerun put in the node's community; 1 for a node alone in its "
+            "community. A node left without ties by a rerun counts as separated from all.",
+            meaning="Community confidence is how often a node stays with its community when a "
+            "few ties are taken away at random; 1 is always.",
+            references=("karrer2008",)),
 )
 
 _BY_NAME = {m.name: m for m in MEASURES}

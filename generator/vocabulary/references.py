@@ -72,6 +72,11 @@ _ALL = [
     Reference("danon2005", "Danon, L., Diaz-Guilera, A., Duch, J. & Arenas, A.: Comparing community "
               "structure identification. Journal of Statistical Mechanics P09008, 2005.",
               "10.1088/1742-5468/2005/09/P09008"),
+    Reference("fortunato2010", "Fortunato, S.: Community detection in graphs. Physics Reports "
+              "486(3-5):75-174, 2010.", "10.1016/j.physrep.2009.11.002"),
+    Reference("karrer2008", "Karrer, B., Levina, E. & Newman, M. E. J.: Robustness of community "
+              "structure in networks. Physical Review E 77:046119, 2008.",
+              "10.1103/PhysRevE.77.046119"),
     Reference("maslov2002", "Maslov, S. & Sneppen, K.: Specificity and stability in topology of "
               "protein networks. Science 296(5569):910-913, 2002.", "10.1126/science.1065103"),
     Reference("north2002", "North, B. V., Curtis, D. & Sham, P. C.: A note on the calculation of "

@@ -34,6 +34,8 @@ __all__ = [
 NEUTRAL_BELOW = 0.1  # |r| below this reads as no clear tendency
 _MODERATE, _STRONG = 0.3, 0.5  # |r| bands: weak below 0.3, moderate below 0.5, strong above
 _CLEAR_MODULARITY, _STRONG_MODULARITY = 0.3, 0.4
+# Agreement (ARI, NMI) bands for readings: much the same from 0.9, partly from 0.5 (practice).
+_HIGH_AGREEMENT, _SOME_AGREEMENT = 0.9, 0.5
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -191,6 +193,29 @@ def _modularity(r: Reading) -> str:
             "communities (more ties inside them than across).")
 
 
+def _agreement(what: str) -> Callable[[Reading], str]:
+    def read(r: Reading) -> str:
+        shown = number(r.value)
+        if r.value >= _HIGH_AGREEMENT:
+            return f"The communities are much the same across {what} ({shown}; 1 is identical)."
+        if r.value >= _SOME_AGREEMENT:
+            return (f"The communities are partly the same across {what} ({shown}; 1 is "
+                    "identical): read the borders between them with care.")
+        return (f"The communities differ a lot across {what} ({shown}; 1 is identical): the "
+                "split is one of several that fit the ties about as well.")
+    return read
+
+
+def _attribute_nmi(r: Reading) -> str:
+    shown = number(r.value)
+    if r.value >= _HIGH_AGREEMENT:
+        return f"The communities follow {r.attribute} closely (NMI {shown}; 1 is identical)."
+    if r.value >= _SOME_AGREEMENT:
+        return f"The communities follow {r.attribute} in part (NMI {shown}; 1 is identical)."
+    return (f"The communities have little to do with {r.attribute} (NMI {shown}; 0 is "
+            "independent).")
+
+
 def _centralization(r: Reading) -> str:
     return f"{number(r.value)} on a scale from 0 (all nodes equal) to 1 (a star)."
 
@@ -262,6 +287,30 @@ STATISTICS: tuple[StatisticEntry, ...] = (
               definition="Number of communities in the reported partition (isolates form their "
               "own).",
               read=_counted("One community was found.", "{value} communities were found.")),
+    StatisticEntry(name="community_agreement_ari", title="Agreement between community runs (ARI)",
+              references=("hubert1985",),
+              definition="Mean adjusted Rand index between the kept partition and the partition "
+              "of every seeded run (the kept run included): 1 when every run found the same "
+              "communities, near 0 when the runs agree no more than chance.",
+              read=_agreement("the separate runs")),
+    StatisticEntry(name="community_agreement_nmi", title="Agreement between community runs (NMI)",
+              references=("danon2005",),
+              definition="Mean normalised mutual information, 2 I(A; B) / (H(A) + H(B)), between "
+              "the kept partition and the partition of every seeded run: 1 when every run found "
+              "the same communities, 0 when they share no information.",
+              read=_agreement("the separate runs")),
+    StatisticEntry(name="community_robustness_ari", title="Robustness of communities (ARI)",
+              references=("hubert1985", "karrer2008"),
+              definition="Mean adjusted Rand index between the kept partition and the partition "
+              "found on each perturbed copy of the network (a share of its ties removed at "
+              "random, the same community method rerun), over the nodes that keep a tie.",
+              read=_agreement("reruns on data with ties removed at random")),
+    StatisticEntry(name="community_attribute_nmi", title="Communities against attribute (NMI)",
+              references=("danon2005",),
+              definition="Normalised mutual information between the communities and the groups "
+              "of a categorical node attribute, over the nodes with a value: 1 when the "
+              "communities are exactly the groups, 0 when they are independent of them.",
+              read=_attribute_nmi),
     StatisticEntry(name="degree_centralization", title="Degree centralization",
               references=("freeman1979",),
               definition="Freeman: sum(max degree - degree) / ((n-1)(n-2)) on the undirected "
@@ -317,6 +366,10 @@ UNDEFINED_REASONS = {
     "one_value": "Every node has the same value.",
     "no_variance": "The mixing pattern has no variance.",
     "constant_degrees": "The degrees at the ends of ties do not vary.",
+    "trivial_partition": "Every partition compared puts all nodes together (or each alone), so "
+    "agreement is not defined.",
+    "one_group": "The communities and the attribute each have a single group.",
+    "no_values": "No node has a value.",
 }
 
 
