@@ -38,20 +38,22 @@ def toml_value(value: Any) -> str:
 TEST_NULL_SAMPLES = 0
 # Nor do they rerun communities on perturbed ties unless they ask (``perturbations=`` or a
 # ``communities`` table that names it): 50 reruns of 20 runs cost a second per network.
+# ``perturbations=None`` leaves the key out, so the documented default applies.
 TEST_PERTURBATIONS = 0
 
 
 def study_toml(*, study: dict | None = None, networks: Sequence[dict] = (),
                tables: dict[str, dict] | None = None,
-               null_samples: int | None = TEST_NULL_SAMPLES) -> str:
+               null_samples: int | None = TEST_NULL_SAMPLES,
+               perturbations: int | None = TEST_PERTURBATIONS) -> str:
     """The text of a study.toml; ``study`` defaults to a title only."""
     study = {"title": "Invented study"} if study is None else study
     if null_samples is not None and "significance" not in (tables or {}):
         tables = {**(tables or {}), "significance": {"null_samples": null_samples}}
     communities = (tables or {}).get("communities", {})
-    if "perturbations" not in communities:
+    if perturbations is not None and "perturbations" not in communities:
         tables = {**(tables or {}), "communities": {**communities,
-                                                     "perturbations": TEST_PERTURBATIONS}}
+                                                     "perturbations": perturbations}}
     parts = ["[study]"] + [f"{k} = {toml_value(v)}" for k, v in study.items()]
     for net in networks:
         parts += ["", "[[network]]"] + [f"{k} = {toml_value(v)}" for k, v in net.items()]
@@ -68,7 +70,8 @@ def csv_text(header: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
 def write_study(root: Path, *, networks: Sequence[dict],
                 files: dict[str, str | bytes] | None = None, study: dict | None = None,
                 tables: dict[str, dict] | None = None,
-                null_samples: int | None = TEST_NULL_SAMPLES) -> Path:
+                null_samples: int | None = TEST_NULL_SAMPLES,
+                perturbations: int | None = TEST_PERTURBATIONS) -> Path:
     """Write study.toml and the given data files (text is written as UTF-8) under ``root``."""
     root.mkdir(parents=True, exist_ok=True)
     for name, content in (files or {}).items():
@@ -79,7 +82,8 @@ def write_study(root: Path, *, networks: Sequence[dict],
         else:
             path.write_text(content, encoding="utf-8")
     (root / "study.toml").write_text(study_toml(study=study, networks=networks, tables=tables,
-                                                null_samples=null_samples), encoding="utf-8")
+                                                null_samples=null_samples,
+                                                perturbations=perturbations), encoding="utf-8")
     return root
 
 

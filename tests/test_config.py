@@ -45,7 +45,7 @@ def config_error(root: Path) -> ConfigError:
 
 def test_minimal_study_loads_with_documented_defaults(tmp_path):
     study = load_study(write_study(tmp_path, networks=[net()], files={"data/edges.csv": EDGES},
-                                   null_samples=None))
+                                   null_samples=None, perturbations=None))
     root = tmp_path.resolve()
     assert study.root == root
     assert study.title == "Invented study"
@@ -73,7 +73,8 @@ def test_every_documented_key_is_read(tmp_path):
                     source="source", target="target", directed=True, weight="times",
                     weight_means="distance", duplicates="max", series="advice", wave=1,
                     color_by="community", size_by="pagerank")]
-    tables = {"communities": {"method": "louvain", "resolution": 2, "runs": 5},
+    tables = {"communities": {"method": "louvain", "resolution": 2, "runs": 5,
+                              "perturbations": 7, "perturb_share": 0.25},
               "significance": {"null_samples": 0},
               "measures": {"exact_paths_up_to": 100, "path_sample_sources": 10},
               "sharing": {"pseudonymize": False, "drop": ["name"], "min_group": 3},
@@ -88,7 +89,8 @@ def test_every_documented_key_is_read(tmp_path):
         "Advice, wave 1", root / "data/staff.csv", "name", True, "times")
     assert (n.weight_means, n.duplicates, n.series, n.wave) == ("distance", "max", "advice", 1)
     assert (n.color_by, n.size_by) == ("community", "pagerank")
-    assert study.communities == CommunitiesConfig(method="louvain", resolution=2.0, runs=5)
+    assert study.communities == CommunitiesConfig(method="louvain", resolution=2.0, runs=5,
+                                                  perturbations=7, perturb_share=0.25)
     assert isinstance(study.communities.resolution, float)
     assert study.significance.null_samples == 0
     assert study.measures == MeasuresConfig(exact_paths_up_to=100, path_sample_sources=10)
@@ -258,8 +260,8 @@ def test_values_of_the_wrong_type_or_range_are_refused(tmp_path, table, key, val
 def test_resolution_that_is_not_a_number_is_refused(tmp_path):
     (tmp_path / "data").mkdir()
     (tmp_path / "data/edges.csv").write_text(EDGES)
-    (tmp_path / "study.toml").write_text(study_toml(networks=[net()]) +
-                                         "\n[communities]\nresolution = nan\n")
+    (tmp_path / "study.toml").write_text(study_toml(networks=[net()], perturbations=None)
+                                         + "\n[communities]\nresolution = nan\n")
     assert config_error(tmp_path).key == "communities.resolution"
 
 

@@ -90,7 +90,8 @@ def karate_network(*, directed: bool = False) -> CleanNetwork:
 
 def karate_analysis(*, directed: bool = False) -> NetworkAnalysis:
     return analyse_network(karate_network(directed=directed),
-                           communities=CommunitiesConfig(runs=5), measures=MeasuresConfig(),
+                           communities=CommunitiesConfig(runs=5, perturbations=0),
+                           measures=MeasuresConfig(),
                            seed=1)
 
 
@@ -413,7 +414,7 @@ def test_community_caption_writes_the_method_as_every_page_does(undirected_figur
 def tested() -> NetworkAnalysis:
     from generator.config import SignificanceConfig
 
-    return analyse_network(karate_network(), communities=CommunitiesConfig(runs=3),
+    return analyse_network(karate_network(), communities=CommunitiesConfig(runs=3, perturbations=0),
                            measures=MeasuresConfig(), seed=1,
                            significance=SignificanceConfig(null_samples=8))
 
