@@ -100,7 +100,8 @@ def test_downloads_have_the_documented_columns(site: Path) -> None:
     # Directed and weighted: in/out columns present, eigenvector left out (not strongly connected).
     assert nodes[0][5:] == ["degree", "in_degree", "out_degree", "strength", "in_strength",
                             "out_strength", "betweenness", "closeness", "harmonic", "pagerank",
-                            "coreness", "clustering", "constraint", "effective_size", "community"]
+                            "coreness", "clustering", "constraint", "effective_size", "community",
+                            "community_confidence"]
     assert len(nodes) - 1 == 61  # 60 staff and one id found only in the ties
     ids = [row[0] for row in nodes[1:]]
     assert "s01" in ids and "s61" in ids  # ids stay text, zero padding kept

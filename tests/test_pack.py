@@ -29,7 +29,7 @@ from generator.pack import pack_study
 from generator.pack.bundle import BUNDLE_COMMENT, sha256sums, title_slug, zip_time
 from generator.pack.codes import KEY_FILE, node_codes
 from generator.pack.leaks import Secret, SecretMatcher, find_leaks, png_text
-from generator.pack.protect import Protection, protect_analysis, redact_finding
+from generator.pack.protect import Protection, other_group, protect_analysis, redact_finding
 from generator.pack.wording import BundleFacts, readme_text
 from generator.publish.archive import zip_bytes
 
@@ -66,7 +66,7 @@ def _nodes_csv() -> str:
 
 
 def _study(root: Path, *, sharing: dict | None = None, notes: dict[str, str] | None = None,
-           network: dict | None = None) -> Path:
+           network: dict | None = None, tables: dict[str, dict] | None = None) -> Path:
     files: dict[str, str | bytes] = {
         "data/edges.csv": csv_text(["source", "target", "weight"], _edges()),
         "data/nodes.csv": _nodes_csv(),
@@ -78,7 +78,8 @@ def _study(root: Path, *, sharing: dict | None = None, notes: dict[str, str] | N
            **(network or {})}
     rules = {"pseudonymize": True, "drop": ["name", "email"], "min_group": 5,
              "terms": "notes/sharing.md", "contact": CONTACT, **(sharing or {})}
-    return write_study(root, networks=[net], files=files, tables={"sharing": rules},
+    return write_study(root, networks=[net], files=files, tables={"sharing": rules,
+                                                                   **(tables or {})},
                        study={"title": "Ridgeway clinics: outreach", "seed": 3})
 
 
@@ -170,7 +171,8 @@ def test_every_node_keeps_the_numbers_of_the_full_report(packed, tmp_path):
     # original groups), but those of the removed columns.
     assert files["files/outreach/statistics.csv"].decode().splitlines() == [
         line for line in full_statistics
-        if not line.startswith(("assortativity:email,", "ei_index:email,"))]
+        if not line.startswith(("assortativity:email,", "ei_index:email,",
+                                "community_attribute_nmi:email,"))]
 
 
 def test_a_group_below_min_group_appears_in_no_table_or_figure(packed):
@@ -263,7 +265,8 @@ def test_datapackage_validates_with_frictionless_against_the_csvs(packed, tmp_pa
         archive.extractall(tmp_path)
     report = frictionless.validate(str(tmp_path / "files/datapackage.json"))
     assert report.valid, report.flatten(["rowNumber", "fieldName", "message"])
-    assert report.stats["tasks"] == 5  # nodes, edges, statistics, mixing of clinic and role
+    assert report.stats["tasks"] == 6  # nodes, edges, statistics, communities, mixing of clinic
+    #                                    and of role
     package = json.loads((tmp_path / "files/datapackage.json").read_text())
     assert all(r["schema"]["missingValues"] == [""] for r in package["resources"])
     # The check can fail: a word in a number column is reported.
@@ -437,7 +440,9 @@ def _analysis(root: Path):
 
 
 def test_protected_analysis_keeps_each_nodes_measures_community_and_position(tmp_path):
-    study, analysis = _analysis(_study(tmp_path / "s"))
+    study, analysis = _analysis(_study(tmp_path / "s", tables={"communities": {
+        "runs": 3, "perturbations": 4}}))
+    assert analysis.stability.ran and analysis.stability.together is not None
     codes = node_codes(IDS + [STRANGER], bytes(32))
     protection = Protection(codes=codes, drop=frozenset({"name", "email"}), min_group=5)
     protected = protect_analysis(analysis, study.networks[0], protection,
@@ -449,9 +454,22 @@ def test_protected_analysis_keeps_each_nodes_measures_community_and_position(tmp
         assert protected.layout[j] == analysis.layout[i]
         assert protected.communities.membership[j] == analysis.communities.membership[i]
         assert protected.measures.iloc[j].equals(analysis.measures.iloc[i])
+        assert protected.stability.confidence[j] == analysis.stability.confidence[i]
+        for k, other in enumerate(analysis.nodes.index):
+            m = list(protected.nodes.index).index(codes[other])
+            assert protected.stability.together[j][m] == analysis.stability.together[i][k]
+    # Communities against attributes: the removed column is gone, small clinics are merged
+    # into one column with their counts added up; the NMI is that of the full report.
+    assert [c.attribute for c in protected.attribute_comparisons] == ["clinic", "role"]
+    full = next(c for c in analysis.attribute_comparisons if c.attribute == "clinic")
+    shown = protected.attribute_comparisons[0]
+    assert shown.nmi == full.nmi and shown.values[-1] == other_group(5)
+    assert SMALL_GROUP not in shown.values and SMALL_GROUP in full.values
+    assert shown.counts == full.counts  # one small clinic: its column becomes the merged one
     assert protected.statistics == tuple(s for s in analysis.statistics
                                          if s.name not in ("assortativity:email",
-                                                           "ei_index:email"))
+                                                           "ei_index:email",
+                                                           "community_attribute_nmi:email"))
 
 
 def test_a_finding_keeps_file_line_and_count_but_not_its_values():

@@ -25,7 +25,7 @@ from generator.config import (
 from generator.draw.figure import Figure
 from generator.errors import ConfigError, DataError
 from generator.ingest import read_network
-from generator.publish.downloads import mixing_files
+from generator.publish.downloads import network_files
 from generator.render import CAUTIONS, NetworkPageInput, render_site
 from generator.render.describe import references_of, stability_reading
 from generator.render.network_page import statistic_rows, top_tables
@@ -174,9 +174,7 @@ def _rows(html: str, table_class: str) -> list[str]:
 def _downloads(items: list[NetworkPageInput]) -> set[str]:
     paths = {"files/datapackage.json", "files/all-data.zip", "manifest.json"}
     for item in items:
-        paths |= {f"files/{item.id}/{name}" for name in
-                  ("nodes.csv", "edges.csv", "statistics.csv", "network.graphml")}
-        paths |= {f"files/{item.id}/{name}" for name in mixing_files(item.analysis)}
+        paths |= set(network_files(item.analysis))  # what the publish stage writes
         paths |= {f"networks/{item.id}/figures/{f.name}.{ext}" for f in item.figures
                   for ext in ("svg", "png")}
     return paths
@@ -574,7 +572,9 @@ def test_network_page_shows_figures_top_nodes_and_communities(built):
     assert [img["src"] for img in page.all("img")] == [
         "figures/map.svg", "figures/degree.svg", "figures/betweenness.svg", "figures/communities.svg"]
     assert "figures/map.png" in html
-    measured = [c for c in items[0].analysis.measures.columns if c != "community"]
+    # Every centrality gets a top-nodes table; the community and its confidence do not.
+    measured = [c for c in items[0].analysis.measures.columns
+                if c not in ("community", "community_confidence")]
     assert len(re.findall(r'<table class="data compact" id="top-', html)) == len(measured)
     assert "Mean adjusted Rand index" in html and "Runs that found this partition" in html
     assert "Leiden" in html
@@ -750,7 +750,11 @@ def test_real_figures_from_the_draw_stage_are_shown_with_their_alt_text(tmp_path
     site = _render(study, items)
     page = _Page(site["networks/work/index.html"].decode())
     images = page.all("img")
-    assert [img["src"] for img in images] == [f"figures/{f.name}.svg" for f in items[1].figures]
+    # The co-assignment figure belongs to the communities page.
+    assert [img["src"] for img in images] == [f"figures/{f.name}.svg" for f in items[1].figures
+                                              if f.name != "coassignment"]
+    communities = _Page(site["networks/work/communities.html"].decode())
+    assert "figures/coassignment.svg" in [img["src"] for img in communities.all("img")]
     assert all(img["alt"] for img in images)
 
 

@@ -302,3 +302,15 @@ def test_every_pair_is_counted_once_per_rerun_in_the_coassignment_matrix(planted
     n = len(together)
     assert all(together[i][j] == together[j][i] for i, j in itertools.combinations(range(n), 2))
     assert all(0 <= together[i][j] <= 20 for i in range(n) for j in range(n))
+
+
+def test_merging_values_of_a_cross_table_adds_their_columns_and_keeps_the_nmi():
+    from generator.analyse.communities import compare_with_attribute, merge_values
+
+    # Worked example: communities 1 1 2 2 2 against values a a b c c.
+    full = compare_with_attribute("team", [1, 1, 2, 2, 2], ["a", "a", "b", "c", "c"])
+    assert full.values == ("a", "b", "c") and full.counts == ((2, 0, 0), (0, 1, 2))
+    merged = merge_values(full, ("a", "b"), "other")
+    assert merged.values == ("c", "other") and merged.counts == ((0, 2), (2, 1))
+    assert merged.nmi == full.nmi and merged.left_out == full.left_out
+    assert merge_values(full, ("z",), "other") is full

@@ -109,7 +109,10 @@ def test_statistics_are_listed_in_a_fixed_order(case, request):
                 if not pd.api.types.is_numeric_dtype(analysis.nodes[a].dtype)]
              + ["modularity", "communities", "degree_centralization"]
              + (["in_degree_centralization", "out_degree_centralization"] if directed else [])
-             + ["betweenness_centralization"])
+             + ["betweenness_centralization", "community_agreement_ari", "community_agreement_nmi"]
+             + (["community_robustness_ari"] if analysis.stability.ran else [])
+             + [f"community_attribute_nmi:{a}" for a in analysis.attributes
+                if not pd.api.types.is_numeric_dtype(analysis.nodes[a].dtype)])
     assert [s.name for s in analysis.statistics] == names
 
 

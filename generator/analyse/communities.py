@@ -8,7 +8,7 @@ import math
 import random
 from collections import Counter
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import igraph as ig
 
@@ -25,6 +25,7 @@ __all__ = [
     "community_profiles",
     "compare_with_attribute",
     "find_communities",
+    "merge_values",
     "normalised_mutual_information",
     "perturbation_seeds",
     "perturbed_stability",
@@ -437,3 +438,17 @@ def compare_with_attribute(attribute: str, membership: Sequence[int],
     return AttributeComparison(attribute=attribute, values=names,
                                counts=tuple(tuple(row) for row in table), nmi=nmi, why=why,
                                left_out=len(membership) - len(kept))
+
+
+def merge_values(comparison: AttributeComparison, small: Sequence[str],
+                 name: str) -> AttributeComparison:
+    """The cross-table with the values in ``small`` merged into one column called ``name``
+    (last), their counts added up. The NMI stays that of the values as measured."""
+    if not set(small) & set(comparison.values):
+        return comparison
+    kept = [j for j, v in enumerate(comparison.values) if v not in small]
+    merged = [j for j, v in enumerate(comparison.values) if v in small]
+    counts = tuple(tuple([row[j] for j in kept] + [sum(row[j] for j in merged)])
+                   for row in comparison.counts)
+    return replace(comparison, values=(*(comparison.values[j] for j in kept), name),
+                   counts=counts)

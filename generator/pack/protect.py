@@ -16,6 +16,7 @@ from dataclasses import dataclass, replace
 import pandas as pd
 
 from ..analyse import NetworkAnalysis
+from ..analyse.communities import merge_values
 from ..analyse.mixing import merge_groups
 from ..config import NetworkConfig, StudyConfig
 from ..errors import Finding
@@ -117,8 +118,17 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
     membership = analysis.communities.membership
     communities = replace(analysis.communities,
                           membership=tuple(membership[i] for i in order))
-    dropped_statistics = ({f"assortativity:{column}" for column in protection.drop}
-                          | {f"ei_index:{column}" for column in protection.drop})
+    dropped_statistics = {f"{kind}:{column}" for column in protection.drop
+                          for kind in ("assortativity", "ei_index", "community_attribute_nmi")}
+    compared = tuple(merge_values(c, merged.get(c.attribute, ()), name)
+                     for c in analysis.attribute_comparisons if c.attribute not in protection.drop)
+    stability = analysis.stability
+    if stability.ran:  # per-vertex results follow the rows into code order
+        together = stability.together
+        stability = replace(
+            stability, confidence=tuple(stability.confidence[i] for i in order),
+            together=None if together is None else
+            tuple(tuple(together[i][j] for j in order) for i in order))
     return replace(
         analysis,
         nodes=nodes,
@@ -133,6 +143,8 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
         findings=tuple(redact_finding(f, drop=protection.drop, withheld=withheld)
                        for f in analysis.findings),
         mixing=mixing,
+        stability=stability,
+        attribute_comparisons=compared,
     )
 
 

@@ -12,6 +12,7 @@ from ..vocabulary import (
     COMMUNITY_CONFIDENCE,
     count_of,
     is_missing,
+    left_out_sentence,
     measure,
     number,
     share,
@@ -157,12 +158,12 @@ def _attribute_tables(analysis: NetworkAnalysis, rows_by_name: dict[str, str]
     tables = []
     for comparison in analysis.attribute_comparisons:
         name = f"community_attribute_nmi:{comparison.attribute}"
+        left_out = ""
         if comparison.nmi is None:
             reading = undefined_reason(comparison.why) if comparison.why else ""
-        else:
+            left_out = left_out_sentence(comparison.left_out)
+        else:  # the statistic's reading already says how many nodes were left out
             reading = rows_by_name.get(name, "")
-        left_out = (f"{count_of(comparison.left_out, 'node')} without a value left out."
-                    if comparison.left_out else "")
         tables.append(AttributeTable(
             attribute=comparison.attribute,
             anchor="attribute-" + "".join(ch if ch.isalnum() else "-"

@@ -114,7 +114,8 @@ def references_of(analysis: NetworkAnalysis) -> list[Reference]:
     if analysis.sampling:
         keys += SAMPLING_REFERENCES
     for stat in analysis.statistics:
-        keys += statistic(stat.name).references
+        if stat.value is not None:  # a statistic that could not be computed used no method
+            keys += statistic(stat.name).references
     if analysis.communities.objective is not None:  # the runs happened (the network has ties)
         keys += community_method(analysis.communities.method).references
         keys += STABILITY_REFERENCES
