@@ -10,6 +10,7 @@ import json
 import os
 import shutil
 import sys
+import threading
 import time
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
@@ -21,8 +22,15 @@ from .analyse import NetworkAnalysis, analyse_network
 from .analyse.compare import compare_series
 from .analyse.two_mode import analyse_two_mode, project
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
-from .config import NetworkConfig, StudyConfig, load_study
-from .draw import FigureSettings, draw_network
+from .config import (
+    CommunitiesConfig,
+    MeasuresConfig,
+    NetworkConfig,
+    SignificanceConfig,
+    StudyConfig,
+    load_study,
+)
+from .draw import Figure, FigureSettings, draw_network
 from .draw.compare import draw_community_flow, draw_series_statistics
 from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
@@ -50,10 +58,12 @@ from .render.site import PartnerCopy, render_notes
 from .render.site_map import ALL_DATA, DATAPACKAGE, compare_figure, explorer_file
 from .render.theme import load_theme
 from .render.two_mode_page import TwoModeInput
+from .schedule import Workers, default_jobs, run_in_order, worker_pool
 from .vocabulary import count_of
 
-__all__ = ["BuildResult", "Progress", "Rebuilder", "build_info_stamp", "build_study", "check_study",
-           "clean_study", "read_notes", "read_text", "site_files", "study_analyses"]
+__all__ = ["BuildResult", "Progress", "Rebuilder", "Workers", "build_info_stamp", "build_study",
+           "check_study", "clean_study", "read_notes", "read_text", "site_files", "study_analyses",
+           "study_results"]
 
 
 class Progress:
@@ -106,6 +116,9 @@ class BuildResult:
     files: int
     networks: list[NetworkAnalysis] = field(default_factory=list)
     up_to_date: bool = False
+    # Seconds by stage: wall-clock in this process, except "analyse" and "draw", which are the
+    # sums over networks of the time spent on them wherever they ran (workers included).
+    timings: dict[str, float] = field(default_factory=dict)
 
 
 def _site_key(study: StudyConfig, keys: dict[str, str], notes: dict[str, str],
@@ -263,13 +276,24 @@ def _input_files(study: StudyConfig, notes: dict[str, str]) -> list[Path]:
 
 
 def build_study(project: Path | str, *, output: Path | None = None,
-                progress: Progress | None = None, fresh: bool = False) -> BuildResult:
+                progress: Progress | None = None, fresh: bool = False,
+                workers: Workers | None = None) -> BuildResult:
     """Build the whole site; the previous site stays untouched unless every stage succeeds.
 
     Results of unchanged networks come from ``<study>/.netfolio-cache/``; ``fresh`` ignores it
-    and writes it anew."""
-    return Rebuilder(project, output=output, progress=progress,
-                     keep_results=False).build(fresh=fresh)
+    and writes it anew. ``workers`` says where networks are analysed and drawn (default: one
+    process per core, or the study's ``[build] cluster``); the site is the same bytes anywhere."""
+    return Rebuilder(project, output=output, progress=progress, keep_results=False,
+                     workers=workers).build(fresh=fresh)
+
+
+def _workers_for(study: StudyConfig, asked: Workers | None) -> Workers:
+    """``--cluster`` first, then ``--jobs``, then ``[build] cluster``, then a process per core."""
+    if asked is not None and (asked.cluster is not None or asked.jobs is not None):
+        return asked
+    if study.build.cluster is not None:
+        return Workers(cluster=study.build.cluster, cluster_source="build.cluster")
+    return Workers(jobs=default_jobs())
 
 
 class Rebuilder:
@@ -277,11 +301,13 @@ class Rebuilder:
     each build in memory so the next one redoes only what an edit changed."""
 
     def __init__(self, project: Path | str, *, output: Path | None = None,
-                 progress: Progress | None = None, keep_results: bool = True):
+                 progress: Progress | None = None, keep_results: bool = True,
+                 workers: Workers | None = None):
         self.project = project
         self.output = output
         self.progress = progress or Progress(quiet=True)
         self.keep_results = keep_results
+        self.workers = workers
         self.builds = 0  # finished builds
         self._cache: ResultCache | None = None
 
@@ -298,7 +324,8 @@ class Rebuilder:
             # The first build of a preview writes the site even when it is up to date, so its
             # results are in memory for the edits that follow.
             result = _build_holding_lock(study, self.progress, self._cache_for(study, fresh),
-                                         skip_if_current=self.builds > 0 or not self.keep_results)
+                                         skip_if_current=self.builds > 0 or not self.keep_results,
+                                         workers=_workers_for(study, self.workers))
         self.builds += 1
         return result
 
@@ -318,7 +345,8 @@ def _report_waiting(progress: Progress) -> Callable[[LockOwner], None]:
 
 
 def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCache, *,
-                        skip_if_current: bool = True) -> BuildResult:
+                        skip_if_current: bool = True, workers: Workers | None = None
+                        ) -> BuildResult:
     """Every stage after config load; the caller holds the study's lock.
 
     A network whose inputs, settings and versions are unchanged is taken from the cache, neither
@@ -333,50 +361,171 @@ def _build_holding_lock(study: StudyConfig, progress: Progress, cache: ResultCac
             progress.stage("analyse", f"{net.id}: cached")
         progress.stage("publish", f"nothing changed: {study.output} is up to date")
         return BuildResult(study=study, output=study.output, files=0, up_to_date=True)
-    analyses = study_analyses(study, keys, progress, cache)
+    timings: dict[str, float] = {}
+    analyses, drawn = study_results(study, keys, progress, cache,
+                                    workers=workers or Workers(jobs=1), timings=timings)
+    start = time.perf_counter()
     files = site_files(study, analyses, keys, notes=notes, summary=summary,
-                       build_info=build_info, progress=progress, cache=cache)
+                       build_info=build_info, progress=progress, cache=cache, drawn=drawn)
+    timings["render"] = time.perf_counter() - start
+    start = time.perf_counter()
     count = write_site(study.output, files, inputs=_input_files(study, notes))
     cache.record_site(study.output, site_key)
     cache.prune()
+    timings["publish"] = time.perf_counter() - start
     size = sum(len(b) for b in files.values())
     progress.stage("publish", f"wrote {count} files ({size / 1e6:.1f} MB) to {study.output}")
-    return BuildResult(study=study, output=study.output, files=count, networks=analyses)
+    return BuildResult(study=study, output=study.output, files=count, networks=analyses,
+                       timings=timings)
 
 
 def study_analyses(study: StudyConfig, keys: dict[str, str], progress: Progress,
-                   cache: ResultCache) -> list[NetworkAnalysis]:
+                   cache: ResultCache, *, workers: Workers | None = None
+                   ) -> list[NetworkAnalysis]:
     """The analysis of every network, in study order: from the cache where the network's key
     (``keys``, from ``analysis_key``) is there, else read, checked and computed (and stored)."""
-    cached = {net.id: cache.analysis(keys[net.id]) for net in study.networks}
-    cleaned = _read_all(study, progress, skip={i for i, a in cached.items() if a is not None})
-    analyses = []
-    for net in study.networks:
-        analysis = cached[net.id]
-        if analysis is not None:
-            progress.stage("analyse", f"{net.id}: cached")
-        else:
-            analysis = analyse_network(cleaned[net.id], communities=study.communities,
-                                       measures=study.measures, seed=study.seed,
-                                       significance=study.significance,
-                                       progress=progress.samples(net.id),
-                                       stability_progress=progress.perturbations(net.id))
-            cache.store_analysis(keys[net.id], analysis)
-            progress.stage("analyse", f"{net.id}: "
-                           f"{count_of(len(analysis.measures.columns), 'measure')}, "
-                           f"{count_of(analysis.communities.count, 'community', 'communities')}")
-        analyses.append(analysis)
+    analyses, _ = study_results(study, keys, progress, cache, workers=workers or Workers(jobs=1),
+                                draw=False)
     return analyses
+
+
+@dataclass(frozen=True, kw_only=True)
+class _NetworkTask:
+    """One network's work for a worker: analyse ``clean`` (unless ``analysis`` is given, from
+    the cache), then draw the figures with ``settings`` (unless None: they are cached)."""
+
+    network_id: str
+    clean: CleanNetwork | None
+    analysis: NetworkAnalysis | None
+    settings: FigureSettings | None
+    communities: CommunitiesConfig
+    measures: MeasuresConfig
+    significance: SignificanceConfig
+    seed: int
+
+
+@dataclass(frozen=True, kw_only=True)
+class _NetworkWork:
+    analysis: NetworkAnalysis
+    figures: list[Figure] | None
+    analyse_seconds: float
+    draw_seconds: float
+    analysed: bool  # False: the analysis came with the task, from the cache
+
+
+# One network at a time per process: the analysis seeds igraph's process-wide random generator
+# and matplotlib is not thread-safe, so a cluster worker running several threads must not
+# interleave two networks.
+_ONE_NETWORK_AT_A_TIME = threading.Lock()
+
+
+def _network_work(task: _NetworkTask, progress: Progress | None = None) -> _NetworkWork:
+    """Analyse and draw one network; runs in a worker process or on a cluster worker, so it
+    takes and returns plain values only (``progress`` only when it runs in this process)."""
+    with _ONE_NETWORK_AT_A_TIME:
+        start = time.perf_counter()
+        analysis = task.analysis
+        if analysis is None:
+            assert task.clean is not None
+            analysis = analyse_network(
+                task.clean, communities=task.communities, measures=task.measures, seed=task.seed,
+                significance=task.significance,
+                progress=progress.samples(task.network_id) if progress else None,
+                stability_progress=progress.perturbations(task.network_id) if progress else None)
+        drawn = time.perf_counter()
+        figures = draw_network(analysis, task.settings) if task.settings is not None else None
+        return _NetworkWork(analysis=analysis, figures=figures,
+                            analyse_seconds=drawn - start,
+                            draw_seconds=time.perf_counter() - drawn,
+                            analysed=task.analysis is None)
+
+
+def study_results(study: StudyConfig, keys: dict[str, str], progress: Progress,
+                  cache: ResultCache, *, workers: Workers, draw: bool = True,
+                  timings: dict[str, float] | None = None
+                  ) -> tuple[list[NetworkAnalysis], dict[str, list[Figure]]]:
+    """The analysis and (when ``draw``) the figures of every network, in study order.
+
+    What the cache holds is taken from it and never sent to a worker; the rest is read and
+    checked here (so every network's errors are listed together), then analysed and drawn
+    where ``workers`` says, and stored in the cache here as each network finishes."""
+    timings = timings if timings is not None else {}
+    start = time.perf_counter()
+    analyses: dict[str, NetworkAnalysis] = {}
+    figures: dict[str, list[Figure]] = {}
+    figure_keys = {net.id: figures_key(keys[net.id], _figure_settings(net))
+                   for net in study.networks}
+    for net in study.networks:
+        found = cache.analysis(keys[net.id])
+        if found is not None:
+            analyses[net.id] = found
+        cached_figures = cache.figures(figure_keys[net.id]) if draw else None
+        if cached_figures is not None:
+            figures[net.id] = cached_figures
+    cleaned = _read_all(study, progress, skip=set(analyses))
+    timings["ingest"] = time.perf_counter() - start
+    tasks = [_NetworkTask(network_id=net.id, clean=cleaned.get(net.id),
+                          analysis=analyses.get(net.id),
+                          settings=_figure_settings(net) if draw and net.id not in figures else None,
+                          communities=study.communities, measures=study.measures,
+                          significance=study.significance, seed=study.seed)
+             for net in study.networks
+             if net.id not in analyses or (draw and net.id not in figures)]
+    for net in study.networks:
+        if net.id in analyses:
+            progress.stage("analyse", f"{net.id}: cached")
+        if net.id in figures:
+            progress.stage("draw", f"{net.id}: cached")
+    finished = 0
+
+    def store(index: int, work: _NetworkWork) -> None:
+        nonlocal finished
+        finished += 1
+        task = tasks[index]
+        done = f"[{finished}/{len(tasks)}]"
+        if work.analysed:
+            cache.store_analysis(keys[task.network_id], work.analysis)
+            found = work.analysis
+            progress.stage("analyse", f"{task.network_id}: "
+                           f"{count_of(len(found.measures.columns), 'measure')}, "
+                           f"{count_of(found.communities.count, 'community', 'communities')} "
+                           f"{done}")
+        if work.figures is not None:
+            cache.store_figures(figure_keys[task.network_id], work.figures)
+            progress.stage("draw", f"{task.network_id}: {count_of(len(work.figures), 'figure')}"
+                           f" {done}")
+
+    start = time.perf_counter()
+    with worker_pool(workers, len(tasks)) as executor:
+        if executor is not None:
+            progress.step("analyse", f"{count_of(len(tasks), 'network')} to analyse and draw "
+                          f"{workers.describe()}")
+        if executor is None:
+            def function(task: _NetworkTask) -> _NetworkWork:
+                return _network_work(task, progress)
+        else:
+            function = _network_work
+        done = run_in_order(function, tasks, executor=executor, on_done=store)
+    timings["workers"] = time.perf_counter() - start
+    timings["analyse"] = sum(w.analyse_seconds for w in done if w.analysed)
+    timings["draw"] = sum(w.draw_seconds for w in done)
+    for task, work in zip(tasks, done):
+        analyses[task.network_id] = work.analysis
+        if work.figures is not None:
+            figures[task.network_id] = work.figures
+    return [analyses[net.id] for net in study.networks], figures
 
 
 def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[str, str], *,
                notes: dict[str, str], summary: str | None, build_info: dict[str, str],
                progress: Progress, cache: ResultCache | None,
-               partner: PartnerCopy | None = None) -> dict[str, bytes]:
+               partner: PartnerCopy | None = None,
+               drawn: dict[str, list[Figure]] | None = None) -> dict[str, bytes]:
     """Every file of the site but the marker and manifest: figures, pages and downloads.
     ``cache`` None draws and writes everything anew and keeps nothing. ``partner`` makes a
     partner copy (pass ``cache`` None with it): its notice on every page, its sharing page,
-    and network maps that name nodes only if ``partner.labels``."""
+    and network maps that name nodes only if ``partner.labels``. ``drawn``: figures already
+    drawn (by ``study_results``), by network id; the others are drawn here."""
     inputs = []
     files: dict[str, bytes] = {}
     shown: dict[str, str] = {}  # per network: the key of what its pages show
@@ -386,10 +535,12 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             settings = replace(settings, labels=partner.labels)
         figure_key = figures_key(keys[net.id], settings)
         shown[net.id] = figure_key  # it holds the analysis key too
-        figures = cache.figures(figure_key) if cache is not None else None
-        if figures is not None:
-            progress.stage("draw", f"{net.id}: cached")
-        else:
+        figures = (drawn or {}).get(net.id) if partner is None else None
+        if figures is None and cache is not None:
+            figures = cache.figures(figure_key)
+            if figures is not None:
+                progress.stage("draw", f"{net.id}: cached")
+        if figures is None:
             figures = draw_network(analysis, settings)
             if cache is not None:
                 cache.store_figures(figure_key, figures)

@@ -33,6 +33,13 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
     build.add_argument("--fresh", action="store_true",
                        help="ignore the cache of earlier results and write it anew")
+    build.add_argument("--jobs", "-j", type=_jobs, metavar="N",
+                       help="analyse and draw networks in N worker processes (default: one per "
+                       "core; 1 runs everything in this process); the site is the same for any N")
+    build.add_argument("--cluster", metavar="ADDRESS",
+                       help="analyse and draw networks on the Dask distributed scheduler at "
+                       "ADDRESS, e.g. tcp://10.0.0.5:8786 (overrides [build] cluster; needs "
+                       "pip install 'netfolio[cluster]')")
     check = verbs.add_parser("check", help="validate study.toml and the data; print every finding")
     check.add_argument("project", nargs="?", default=".", help="study folder (default: here)")
     check.add_argument("--quiet", "-q", action="store_true", help="print errors only")
@@ -59,6 +66,13 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _jobs(text: str) -> int:
+    """A number of worker processes for --jobs: 1 or more."""
+    if not text.isdigit() or int(text) < 1:
+        raise argparse.ArgumentTypeError(f"'{text}' is not a number of processes (1 or more)")
+    return int(text)
+
+
 def _port(text: str) -> int:
     """A port number for --port; 0 asks the system for a free one."""
     if not text.isdigit() or int(text) > 65535:
@@ -79,10 +93,15 @@ def _print_finding(finding: Finding) -> None:
 
 
 def _build(args: argparse.Namespace) -> int:
-    from .build import Progress, build_study  # heavy imports only when needed
+    from .build import Progress, Workers, build_study  # heavy imports only when needed
 
+    if args.cluster is not None and not args.cluster.strip():
+        raise UsageError("--cluster needs the Dask scheduler's address, e.g. tcp://10.0.0.5:8786")
+    if args.cluster is not None and args.jobs is not None:
+        raise UsageError("--jobs and --cluster cannot be used together: the cluster decides "
+                         "how many workers run")
     result = build_study(args.project, output=args.out, progress=Progress(quiet=args.quiet),
-                         fresh=args.fresh)
+                         fresh=args.fresh, workers=Workers(jobs=args.jobs, cluster=args.cluster))
     if not args.quiet:
         print(f"site written to {result.output / 'index.html'}")
     return 0

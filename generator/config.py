@@ -20,6 +20,7 @@ from .vocabulary import COMMUNITY_METHODS as METHOD_ENTRIES
 from .vocabulary import SIZE_MEASURES, measure
 
 __all__ = [
+    "BuildConfig",
     "CommunitiesConfig",
     "EdgeListSource",
     "MatrixSource",
@@ -178,6 +179,15 @@ class SiteConfig:
 
 
 @dataclass(frozen=True, kw_only=True)
+class BuildConfig:
+    """How the build runs; never what it makes (the site is the same bytes either way).
+    ``cluster``: the address of a Dask distributed scheduler that analyses and draws the
+    networks; None runs them on this computer."""
+
+    cluster: str | None = None
+
+
+@dataclass(frozen=True, kw_only=True)
 class StudyConfig:
     """The whole of study.toml, with every path made absolute and checked to lie in ``root``."""
 
@@ -193,6 +203,7 @@ class StudyConfig:
     measures: MeasuresConfig = field(default_factory=MeasuresConfig)
     sharing: SharingConfig = field(default_factory=SharingConfig)
     site: SiteConfig = field(default_factory=SiteConfig)
+    build: BuildConfig = field(default_factory=BuildConfig)
 
     @property
     def study_file(self) -> Path:
@@ -433,7 +444,8 @@ def projections(net: NetworkConfig) -> tuple[NetworkConfig, NetworkConfig]:
         for mode in net.modes)
 
 
-_TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site")
+_TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site",
+        "build")
 
 
 def load_study(project: Path | str) -> StudyConfig:
@@ -524,6 +536,10 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         raise ConfigError("is empty; say whom partners ask about the bundle, or leave the key out",
                           key="sharing.contact")
     si = _Table(raw.get("site", {}), "site", ("theme", "allow_html", "node_views"))
+    cluster = _Table(raw.get("build", {}), "build", ("cluster",)).get("cluster", str)
+    if cluster is not None and not cluster.strip():
+        raise ConfigError("is empty; give the Dask scheduler's address (tcp://host:8786) or "
+                          "leave the key out", key="build.cluster", locate=True)
     summary_path = _existing_file(root, summary, "study.summary") if summary is not None else None
     if summary_path is not None and summary_path.is_relative_to(output):
         raise ConfigError(f"'{summary}' lies inside the output folder, which is replaced on every "
@@ -567,6 +583,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         site=SiteConfig(theme=si.get("theme", str, "default"),
                         allow_html=si.get("allow_html", bool, False),
                         node_views=si.get("node_views", bool, None)),
+        build=BuildConfig(cluster=cluster.strip() if cluster is not None else None),
     )
 
 
