@@ -402,6 +402,7 @@ class _NetworkTask:
     measures: MeasuresConfig
     significance: SignificanceConfig
     seed: int
+    in_worker: bool  # its rewired-network samples then run one after another, not in processes
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -431,7 +432,8 @@ def _network_work(task: _NetworkTask, progress: Progress | None = None) -> _Netw
                 task.clean, communities=task.communities, measures=task.measures, seed=task.seed,
                 significance=task.significance,
                 progress=progress.samples(task.network_id) if progress else None,
-                stability_progress=progress.perturbations(task.network_id) if progress else None)
+                stability_progress=progress.perturbations(task.network_id) if progress else None,
+                null_workers=1 if task.in_worker else None)
         drawn = time.perf_counter()
         figures = draw_network(analysis, task.settings) if task.settings is not None else None
         return _NetworkWork(analysis=analysis, figures=figures,
@@ -464,13 +466,15 @@ def study_results(study: StudyConfig, keys: dict[str, str], progress: Progress,
             figures[net.id] = cached_figures
     cleaned = _read_all(study, progress, skip=set(analyses))
     timings["ingest"] = time.perf_counter() - start
+    needed = [net for net in study.networks
+              if net.id not in analyses or (draw and net.id not in figures)]
+    in_worker = workers.cluster is not None or min(workers.processes, len(needed)) > 1
     tasks = [_NetworkTask(network_id=net.id, clean=cleaned.get(net.id),
                           analysis=analyses.get(net.id),
                           settings=_figure_settings(net) if draw and net.id not in figures else None,
                           communities=study.communities, measures=study.measures,
-                          significance=study.significance, seed=study.seed)
-             for net in study.networks
-             if net.id not in analyses or (draw and net.id not in figures)]
+                          significance=study.significance, seed=study.seed, in_worker=in_worker)
+             for net in needed]
     for net in study.networks:
         if net.id in analyses:
             progress.stage("analyse", f"{net.id}: cached")

@@ -92,12 +92,13 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                     measures: MeasuresConfig, seed: int,
                     significance: SignificanceConfig | None = None,
                     progress: Callable[[int, int], None] | None = None,
-                    stability_progress: Callable[[int, int], None] | None = None
-                    ) -> NetworkAnalysis:
+                    stability_progress: Callable[[int, int], None] | None = None,
+                    null_workers: int | None = None) -> NetworkAnalysis:
     """Compute every measure, statistic and the community partition of one network, and (when
     ``significance`` asks for null samples) test the statistics against rewired networks;
     ``progress(done, samples)`` follows those tests, ``stability_progress(done, total)`` the
-    community reruns on perturbed ties."""
+    community reruns on perturbed ties. ``null_workers`` is passed to ``null_model_tests``
+    (1: no processes of its own, as when the network is already analysed in a worker)."""
     graph = build_graph(network)
     weighted = network.weighted
     node = node_measures(graph, weighted=weighted, exact_up_to=measures.exact_paths_up_to,
@@ -145,7 +146,7 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
             graph, weighted=weighted, attributes=network.nodes[list(network.attributes)],
             method=communities.method, resolution=communities.resolution, runs=communities.runs,
             samples=significance.null_samples if significance else 0, seed=seed,
-            progress=progress),
+            progress=progress, workers=null_workers),
         mixing=tuple(mixing_table(graph, attributes[column], column)
                      for column in categorical_attributes(attributes)),
         listed_nodes=network.listed,
