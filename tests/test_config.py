@@ -10,6 +10,7 @@ import pytest
 from conftest import study_toml, write_study
 
 from generator.config import (
+    BuildConfig,
     CommunitiesConfig,
     EdgeListSource,
     MatrixSource,
@@ -78,7 +79,8 @@ def test_every_documented_key_is_read(tmp_path):
               "significance": {"null_samples": 0},
               "measures": {"exact_paths_up_to": 100, "path_sample_sources": 10},
               "sharing": {"pseudonymize": False, "drop": ["name"], "min_group": 3},
-              "site": {"theme": "plain", "allow_html": True}}
+              "site": {"theme": "plain", "allow_html": True},
+              "build": {"cluster": "tcp://127.0.0.1:8786"}}
     study = load_study(study_with(tmp_path, networks=networks, tables=tables, files=files,
                                   study={"title": "T", "summary": "notes/index.md", "seed": 9,
                                          "output": "site"}))
@@ -96,6 +98,7 @@ def test_every_documented_key_is_read(tmp_path):
     assert study.measures == MeasuresConfig(exact_paths_up_to=100, path_sample_sources=10)
     assert study.sharing == SharingConfig(pseudonymize=False, drop=("name",), min_group=3)
     assert study.site == SiteConfig(theme="plain", allow_html=True)
+    assert study.build == BuildConfig(cluster="tcp://127.0.0.1:8786")
 
 
 def test_settings_are_frozen(tmp_path):
