@@ -8,15 +8,14 @@ import sys
 from pathlib import Path
 
 import pytest
+from test_build import copy_example, site_files
 
+from generator import schedule
 from generator.build import Workers, build_study
 from generator.cli import main
 from generator.config import BuildConfig, load_study
 from generator.errors import ConfigError, UsageError
-from generator import schedule
 from generator.schedule import run_in_order, worker_pool
-
-from test_build import copy_example, site_files
 
 
 def _square(x: int) -> int:
