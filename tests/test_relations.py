@@ -248,3 +248,31 @@ def test_bad_relations_settings_are_refused(tmp_path, change, message):
     with pytest.raises(ConfigError) as caught:
         load_study(root)
     assert message in str(caught.value) and caught.value.line is not None
+
+
+def test_a_directed_and_an_undirected_relation_overlap_as_undirected_pairs(tmp_path):
+    # a->b and b->a are one pair; with c-d in both and b-c only undirected: 2 of 3 pairs shared.
+    asks = analyse_graph(tmp_path / "a", nx.DiGraph([("a", "b"), ("b", "a"), ("d", "c")]),
+                         id="asks")
+    works = analyse_graph(tmp_path / "w", nx.Graph([("a", "b"), ("b", "c"), ("c", "d")]),
+                          id="works")
+    result = compare_relations("r", [asks, works], permutations=9, seed=1)
+    assert result.pairs[0].jaccard == pytest.approx(2 / 3)
+
+
+def test_readings_say_what_the_numbers_mean():
+    from generator.vocabulary.relations import p_reading, term_reading
+
+    smallest = p_reading(1 / 1001, 1000, "a correlation this far from zero")
+    assert "came up in none of them" in smallest
+    assert "(p = 0.000999, the smallest possible with 1,000 relabellings)" in smallest
+    large = p_reading(0.4, 99, "a correlation this far from zero")
+    assert "39 times (p = 0.4)" in large and "chance could explain it" in large
+    unweighted = term_reading("same:unit", 0.12, 0.01, 99, titles={}, outcome="Help",
+                              unit=None)
+    assert unweighted.startswith("For a pair who share the same unit, a Help tie is 12 "
+                                 "percentage points more likely on average")
+    weighted = term_reading("work", -0.5, 0.5, 99, titles={"work": "Work"}, outcome="Help",
+                            unit="times per month", weighted=frozenset({"work"}))
+    assert weighted.startswith("For a pair tied in Work (per unit of its tie weight), Help is "
+                               "0.5 times per month lower")

@@ -83,11 +83,8 @@ class RelationsPage:
     files: tuple[tuple[str, str], ...]  # (path, href)
 
 
-def _p_text(p: float | None, permutations: int) -> str:
-    if p is None:
-        return MISSING
-    smallest = 1 / (permutations + 1)
-    return f"< {number(smallest)}" if p <= smallest else number(p)
+def _p_text(p: float | None) -> str:
+    return MISSING if p is None else number(p)
 
 
 def _unit(item: NetworkPageInput) -> str | None:
@@ -110,7 +107,7 @@ def relations_context(relation: RelationsInput, networks: Mapping[str, NetworkPa
             heading=f"{a} and {b}", anchor=f"pair-{pair.network_a}-{pair.network_b}",
             jaccard=MISSING if pair.jaccard is None else number(pair.jaccard),
             correlation=MISSING if qap.correlation is None else signed(qap.correlation),
-            p=_p_text(qap.p, qap.permutations),
+            p=_p_text(qap.p),
             readings=(jaccard_reading(pair.jaccard, a, b),
                       correlation_reading(qap.correlation, a, b),
                       p_reading(qap.p, qap.permutations, "a correlation at least this far "
@@ -130,12 +127,14 @@ def relations_context(relation: RelationsInput, networks: Mapping[str, NetworkPa
                  "the correlation above) and still add little once the others are in the model, "
                  "when they tell the same story.")
         unit = _unit(networks[model.outcome])
+        weighted = frozenset(i for i in comparison.networks if networks[i].analysis.weighted)
         rows = tuple(ModelRow(
             term=term_title(t.term, titles), coefficient=number(t.coefficient),
             std_coefficient=MISSING if t.std_coefficient is None else signed(t.std_coefficient),
-            p=_p_text(t.p, model.permutations),
+            p=_p_text(t.p),
             reading=term_reading(t.term, t.coefficient, t.p, model.permutations, titles=titles,
-                                 outcome=outcome, unit=unit)) for t in model.terms)
+                                 outcome=outcome, unit=unit, weighted=weighted))
+            for t in model.terms)
         fit = model_fit_reading(model.r_squared, model.dyads, outcome, comparison.model_directed)
     first = networks[comparison.networks[0]].analysis
     labels = {str(node): node_name(label, str(node))

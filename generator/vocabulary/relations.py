@@ -47,8 +47,10 @@ def p_reading(p: float | None, permutations: int, what: str) -> str:
     if p is None:
         return "No p-value: there is no variation to test."
     smallest = 1 / (permutations + 1)
-    rare = (f"rare among random relabellings (p {'<' if p <= smallest else '='} "
-            f"{number(max(p, smallest))})")
+    rare = f"rare among random relabellings (p = {number(p)}"
+    if p <= smallest:
+        rare += f", the smallest possible with {count(permutations)} relabellings"
+    rare += ")"
     if p < SIGNIFICANCE_LEVEL:
         return (f"In {count(permutations)} random relabellings of the nodes, {what} came up "
                 f"{_times(p, permutations)}: {rare}.")
@@ -75,10 +77,12 @@ def term_title(term: str, titles: dict[str, str]) -> str:
 
 
 def term_reading(term: str, coefficient: float, p: float | None, permutations: int, *,
-                 titles: dict[str, str], outcome: str, unit: str | None) -> str:
+                 titles: dict[str, str], outcome: str, unit: str | None,
+                 weighted: frozenset[str] = frozenset()) -> str:
     """One coefficient in words, holding the other terms fixed; ``unit`` is what the outcome's
     tie value counts ("times per month"), None for an unweighted outcome (a 1/0 tie, so a
-    coefficient is a change in the chance of a tie)."""
+    coefficient is a change in the chance of a tie); ``weighted`` names the predictor networks
+    whose ties carry weights (their coefficient is per unit of weight)."""
     kind, _, attribute = term.partition(":")
     if term == "intercept":
         return (f"The expected {outcome} tie value of a pair with every other term at zero: "
@@ -88,7 +92,8 @@ def term_reading(term: str, coefficient: float, p: float | None, permutations: i
     elif kind == "difference" and attribute:
         subject = f"For each one-unit larger difference in {attribute} between the two"
     else:
-        subject = f"For a pair tied in {titles.get(term, term)} (per unit of its tie value)"
+        subject = f"For a pair tied in {titles.get(term, term)}" + (
+            " (per unit of its tie weight)" if term in weighted else "")
     size = abs(coefficient)
     if unit is None:
         points = f"{number(size * 100)} percentage points"
