@@ -33,6 +33,9 @@ PAGE_KINDS = {
     "checks": "checks.html",
     "downloads": "downloads.html",
     "note": "notes/methods.html",
+    "communities": "networks/advice/communities.html",
+    "waves": "compare/advice.html",
+    "two-mode": "networks/training/index.html",
 }
 SERIOUS = {"serious", "critical"}
 # Elements allowed to scroll sideways on a phone: they say so (a focusable region) themselves.

@@ -37,7 +37,9 @@ sync_api = pytest.importorskip("playwright.sync_api")
 PREFIX = "/studies/clinics/"
 PAGE_KINDS = ["index.html", "networks/advice/index.html", "networks/coworking/index.html",
               "networks/advice/nodes.html", "networks/advice/nodes/node-10.html",
-              "methods.html", "checks.html", "downloads.html", "notes/methods.html"]
+              "methods.html", "checks.html", "downloads.html", "notes/methods.html",
+              "networks/advice/communities.html", "compare/advice.html",
+              "networks/training/index.html"]
 CONFIG = """
 worker_processes 1;
 {user}

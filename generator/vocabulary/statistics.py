@@ -135,11 +135,10 @@ def _degree_assortativity(r: Reading) -> str:
     if abs(r.value) < NEUTRAL_BELOW:
         return ("Ties show no clear tendency to join nodes of similar or of different degree "
                 f"(r = {shown}).")
-    if r.value > 0:
-        return (f"Ties lean {_strength_word(r.value)} towards joining nodes of similar degree "
-                f"(r = {shown}); this is not tested against chance.")
-    return (f"Ties lean {_strength_word(r.value)} towards joining well-tied nodes with "
-            f"little-tied ones (r = {shown}); this is not tested against chance.")
+    side = ("nodes of similar degree" if r.value > 0
+            else "well-tied nodes with little-tied ones")
+    return (f"r = {shown}: ties join {side} more often than random mixing would. This was not "
+            "tested against chance, so it claims no tendency.")
 
 
 def _attribute_assortativity(r: Reading) -> str:
