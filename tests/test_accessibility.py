@@ -36,6 +36,7 @@ PAGE_KINDS = {
     "communities": "networks/advice/communities.html",
     "waves": "compare/advice.html",
     "two-mode": "networks/training/index.html",
+    "relations": "compare/advice-and-coworking.html",
 }
 SERIOUS = {"serious", "critical"}
 # Elements allowed to scroll sideways on a phone: they say so (a focusable region) themselves.
