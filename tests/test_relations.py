@@ -276,3 +276,15 @@ def test_readings_say_what_the_numbers_mean():
                             unit="times per month", weighted=frozenset({"work"}))
     assert weighted.startswith("For a pair tied in Work (per unit of its tie weight), Help is "
                                "0.5 times per month lower")
+
+
+def test_a_model_term_without_variation_gets_no_p_value():
+    from generator.analyse.compare import mrqap
+
+    rng = np.random.default_rng(2)
+    outcome = (rng.random((12, 12)) < 0.3).astype(float)
+    np.fill_diagonal(outcome, 0)
+    everyone = same_matrix(["north"] * 12)  # every pair shares the value
+    result = mrqap(outcome, {"same:unit": everyone}, directed=True, permutations=19, seed=1)
+    term = {t.term: t for t in result.terms}["same:unit"]
+    assert term.p is None and term.std_coefficient is None

@@ -310,6 +310,11 @@ def mrqap(outcome: np.ndarray, predictors: dict[str, np.ndarray], *, directed: b
     sd_y = y.std()
     p_values: list[float | None] = []
     for k, name in enumerate(names):
+        if not np.isfinite(t_observed[k + 1]) or columns[k].std() == 0:
+            # A term with no variation (every pair shares the clinic, a network with no ties)
+            # has no t to beat: no p-value, rather than the smallest one by default.
+            p_values.append(None)
+            continue
         others = np.column_stack([np.ones(len(y))] + [c for j, c in enumerate(columns) if j != k])
         fitted, *_ = np.linalg.lstsq(others, columns[k], rcond=None)
         # Back to a matrix, so that its rows and columns are permuted together.
