@@ -78,6 +78,7 @@ class RelationsPage:
     model_intro: str
     model_rows: tuple[ModelRow, ...]
     model_fit: str
+    degree_note: str  # how a directed network's degree counts; "" when none is directed
     degree_columns: tuple[str, ...]  # network titles
     degrees: tuple[tuple[str, tuple[str, ...]], ...]  # node name, degree in each network
     files: tuple[tuple[str, str], ...]  # (path, href)
@@ -148,11 +149,20 @@ def relations_context(relation: RelationsInput, networks: Mapping[str, NetworkPa
         caution=PERMUTATION_CAUTION,
         pairs=tuple(pairs), model_heading=heading, model_intro=intro, model_rows=rows,
         model_fit=fit,
+        degree_note=_degree_note([titles[i] for i in comparison.networks
+                                  if networks[i].analysis.directed]),
         degree_columns=tuple(titles[i] for i in comparison.networks),
         degrees=tuple((labels.get(node, node), tuple(count(d) for d in row))
                       for node, row in zip(comparison.nodes, comparison.degrees)),
         files=tuple((path, frame.href(path)) for path in files),
     )
+
+
+def _degree_note(directed: list[str]) -> str:
+    if not directed:
+        return ""
+    which = directed[0] if len(directed) == 1 else ", ".join(directed[:-1]) + " and " + directed[-1]
+    return f"In {which} a tie has a direction, so degree counts the ties sent and received."
 
 
 @dataclass(frozen=True)
