@@ -267,3 +267,26 @@ def test_a_partner_bundle_carries_the_projections_but_not_the_unprotected_two_mo
     names = zipfile.ZipFile(bundle).namelist()
     assert any("files/tr-staff/nodes.csv" in n for n in names)
     assert not any("files/tr/" in n or "networks/tr/" in n for n in names)
+
+
+def test_checks_page_lists_the_two_mode_files_checks_once_before_its_projections(
+        tmp_path: Path) -> None:
+    # p4 attends nothing (a node with no ties in the two-mode network); p3 shares no session
+    # with another staff node, so p3 and p4 have no ties in the staff projection.
+    root = write_study(tmp_path, networks=[{
+        "id": "tr", "title": "Training", "edges": "data/e.csv", "nodes": "data/n.csv",
+        "two_mode": True, "modes": ["staff", "session"]}],
+        files={"data/e.csv": "source,target\np1,s1\np2,s1\np1,s1\np3,s2\n",
+               "data/n.csv": "id,mode\np1,staff\np2,staff\np3,staff\np4,staff\n"
+                             "s1,session\ns2,session\n"})
+    assert main(["build", str(root), "--out", str(tmp_path / "site")]) == 0
+    html = (tmp_path / "site" / "checks.html").read_text(encoding="utf-8")
+    order = [html.index(f'<h2 id="network-{i}"') for i in ("tr", "tr-staff", "tr-session")]
+    assert order == sorted(order)
+    own, staff, session = (html[order[0]:order[1]], html[order[1]:order[2]], html[order[2]:])
+    assert "1 repeated tie merged" in own and "1 node with no ties" in own
+    for projection in (staff, session):
+        assert "repeated tie" not in projection and "with no ties, kept" not in projection
+        assert "Made from the two-mode network Training" in projection
+    assert "2 of the 4 staff nodes share no session with another staff node" in staff
+    assert "2 of the 2 session nodes share no staff with another session node" in session

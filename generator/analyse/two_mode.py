@@ -136,7 +136,8 @@ def project(network: TwoModeNetwork, config: NetworkConfig) -> CleanNetwork:
     edges = pd.DataFrame({"source": pd.Series([a for a, _ in pairs], dtype=str),
                           "target": pd.Series([b for _, b in pairs], dtype=str),
                           "weight": pd.Series([ties[p] for p in pairs], dtype=float)})
-    checks = DataChecks([*network.checks.findings,
-                         *projection_findings(network, mode, tied=bool(pairs))])
+    # The two-mode network's file checks are its own (listed once, under it); the projection
+    # says how it was made.
+    checks = DataChecks(projection_findings(network, mode, tied=bool(pairs)))
     return CleanNetwork(config, nodes, edges, True, tuple(attributes.columns), checks,
                         network.files)

@@ -323,7 +323,8 @@ def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
         lines = sorted(t.line for g in repeated for t in g)
         how = f"weights combined by {net.duplicates}" if weighted else "kept once"
         shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
-        checks.add(Finding("fix", name, f"{extra} repeated ties merged, {how}; lines {shown}",
+        checks.add(Finding("fix", name,
+                           f"{count_of(extra, 'repeated tie')} merged, {how}; lines {shown}",
                            line=lines[0], count=extra))
     pairs = sorted(groups, key=lambda p: (natural_key(p[0]), natural_key(p[1])))
     frame = pd.DataFrame({"first": pd.Series([p[0] for p in pairs], dtype=str),

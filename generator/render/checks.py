@@ -3,6 +3,7 @@ rendering the notes."""
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 from ..errors import Finding
@@ -10,6 +11,7 @@ from ..vocabulary import MISSING, count
 from .inputs import NetworkPageInput
 from .mixing import isolates_text
 from .site_map import PageFrame, network_page
+from .two_mode_page import TwoModeInput
 
 __all__ = ["LEVEL_TITLES", "NOTES_RULES", "ChecksPage", "FindingGroup", "FindingRow", "NetworkChecks",
            "NotesChecks", "checks_context", "finding_groups"]
@@ -85,8 +87,14 @@ def finding_groups(findings: tuple[Finding, ...] | list[Finding]) -> tuple[Findi
     return tuple(groups)
 
 
-def _rules(item: NetworkPageInput) -> tuple[str, ...]:
+def _rules(item: NetworkPageInput, parent: TwoModeInput | None = None) -> tuple[str, ...]:
     config, analysis = item.config, item.analysis
+    if config.projected_from is not None:
+        if parent is None:  # a partner copy leaves the two-mode network out
+            return ("Made from a two-mode network whose own page and file checks are left out "
+                    "of this copy.",)
+        return (f"Made from the two-mode network {parent.title}: the checks of its files are "
+                "listed under it, once.",)
     how = f", weights combined by {config.duplicates}" if analysis.weighted else ""
     repeats = (() if config.matrix is not None else
                (f"Repeated ties between the same pair are merged into one tie{how}.",))
@@ -103,17 +111,41 @@ class ChecksPage:
     notes: NotesChecks | None
 
 
+def _two_mode_rules(item: TwoModeInput) -> tuple[str, ...]:
+    first, second = item.analysis.modes
+    return (f"Each tie joins a {first} node to a {second} node; the same text may name a node of "
+            "each mode.",
+            "Repeated ties between the same pair are merged into one tie (a fix below says how "
+            "their weights were combined).",
+            "Lines count as in a text editor: the header is line 1.")
+
+
 def checks_context(frame: PageFrame, networks: list[NetworkPageInput], *,
-                   notes: tuple[Finding, ...] | None = None) -> ChecksPage:
-    """``notes``: the findings of rendering the notes and summary (None: the study has none)."""
+                   notes: tuple[Finding, ...] | None = None,
+                   two_mode: Sequence[TwoModeInput] = ()) -> ChecksPage:
+    """``notes``: the findings of rendering the notes and summary (None: the study has none).
+    A two-mode network's file checks are listed once, before its projections."""
+    sections: list[NetworkChecks] = []
+    shown: set[str] = set()
+    by_id = {two.id: two for two in two_mode}
+    for item in networks:
+        source = item.config.projected_from
+        if source in by_id and source not in shown:
+            shown.add(source)
+            two = by_id[source]
+            sections.append(NetworkChecks(
+                id=two.id, title=two.title, anchor=f"network-{two.id}",
+                page_href=frame.href(network_page(two.id)), rules=_two_mode_rules(two),
+                groups=finding_groups(two.analysis.findings)))
+        sections.append(NetworkChecks(
+            id=item.id, title=item.title, anchor=f"network-{item.id}",
+            page_href=frame.href(network_page(item.id)),
+            rules=_rules(item, by_id.get(source) if source is not None else None),
+            groups=finding_groups(item.analysis.findings),
+            isolates=isolates_text(item.analysis, item.config)))
     return ChecksPage(
         page=frame,
-        networks=tuple(NetworkChecks(
-            id=item.id, title=item.title, anchor=f"network-{item.id}",
-            page_href=frame.href(network_page(item.id)), rules=_rules(item),
-            groups=finding_groups(item.analysis.findings),
-            isolates=isolates_text(item.analysis),
-        ) for item in networks),
+        networks=tuple(sections),
         notes=None if notes is None else NotesChecks(
             title="Notes and summary", anchor="notes", rules=NOTES_RULES,
             groups=finding_groups(notes)),

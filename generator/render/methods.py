@@ -275,7 +275,7 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
         versions=tuple(analysis.versions.items()),
         mixing=tuple((text, cite.cite(keys)) for text, keys in mixing_method_text(
             analysis, categorical=item.config.categorical, numeric=item.config.numeric,
-            isolates=isolates_text(analysis))),
+            isolates=isolates_text(analysis, item.config))),
     )
 
 

@@ -9,6 +9,7 @@ from dataclasses import dataclass
 import pandas as pd
 
 from ..analyse import MixingTable, NetworkAnalysis
+from ..config import NetworkConfig
 from ..draw.mixing import MIXING_FIGURE_PREFIX, SCATTER_FIGURE_PREFIX, mixing_figure_names
 from ..vocabulary import MISSING, count_of, number
 from ..vocabulary.mixing import (
@@ -16,6 +17,7 @@ from ..vocabulary.mixing import (
     group_ei_reading,
     isolates_sentence,
     mixing_csv_names,
+    projection_isolates_sentence,
 )
 from .figures import FigureView
 from .inputs import NetworkPageInput
@@ -63,9 +65,15 @@ def is_mixing_figure(name: str) -> bool:
     return name.startswith((MIXING_FIGURE_PREFIX, SCATTER_FIGURE_PREFIX))
 
 
-def isolates_text(analysis: NetworkAnalysis) -> str:
+def isolates_text(analysis: NetworkAnalysis, config: NetworkConfig | None = None) -> str:
+    """How many nodes have no ties and how measures treat them; a projection (``config`` says
+    which) speaks of nodes sharing nothing, not of non-respondents."""
     degrees = analysis.measures["degree"]
     isolates = int((degrees == 0).sum())
+    mode = config.projected_mode if config is not None else None
+    if config is not None and mode is not None:
+        other = config.modes[1] if mode == config.modes[0] else config.modes[0]
+        return projection_isolates_sentence(isolates, len(analysis.nodes), mode=mode, other=other)
     listed = analysis.listed_nodes
     return isolates_sentence(isolates, listed if listed is not None else len(analysis.nodes),
                              listed_in_node_list=listed is not None)
@@ -112,4 +120,4 @@ def mixing_section(item: NetworkPageInput, frame: PageFrame, figures: tuple[Figu
             figure=by_name.get(names[attribute]),
             directed=analysis.directed,
         ))
-    return MixingSection(isolates=isolates_text(analysis), attributes=tuple(views))
+    return MixingSection(isolates=isolates_text(analysis, item.config), attributes=tuple(views))

@@ -250,7 +250,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     if terms is not None:  # the terms are often a note too: each finding is listed once
         note_findings = tuple(dict.fromkeys((*(note_findings or ()), *terms.findings)))
     pages.append((CHECKS, "checks.html", checks_context(
-        site.frame(CHECKS, "Data checks"), networks, notes=note_findings)))
+        site.frame(CHECKS, "Data checks"), networks, notes=note_findings, two_mode=two_mode)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
     if not keep(DOWNLOADS, every_network, sorted((sizes or {}).items()),

@@ -23,6 +23,7 @@ __all__ = [
     "mixing_file_stems",
     "mixing_method",
     "mixing_method_text",
+    "projection_isolates_sentence",
     "scatter_method",
 ]
 
@@ -150,3 +151,15 @@ def isolates_sentence(isolates: int, listed: int, *, listed_in_node_list: bool) 
             "(and eigenvector, where it is reported), get only the random-jump share of "
             "PageRank, form communities of their own, take no part in mixing matrices, and "
             "have no constraint or effective size (empty cells in nodes.csv).")
+
+
+def projection_isolates_sentence(isolates: int, total: int, *, mode: str, other: str) -> str:
+    """How many nodes of a projection share no node of the other mode with anyone."""
+    if isolates == 0:
+        return (f"Every one of the {count(total)} {mode} nodes shares at least one {other} with "
+                f"another {mode} node, so each has a tie in this projection.")
+    who = "nodes shares" if isolates == 1 else "nodes share"
+    return (f"{count(isolates)} of the {count(total)} {mode} {who} no {other} with another "
+            f"{mode} node, so {'it has' if isolates == 1 else 'they have'} no ties in this "
+            "projection. They are kept: they count in n, score 0 for degree and the other "
+            "centralities, and form communities of their own.")
