@@ -29,7 +29,8 @@ The advice file also carries, on purpose, the kind of faults real survey exports
 
 * three repeated ties: a (source, target) pair that appears a second time with another count;
 * one self-loop (a respondent who named themself);
-* one tie from ``s61``, a new hire who answered the survey but is not yet on the roster.
+* one tie from ``s61``, a new hire who answered the survey but is not yet on the roster (in both
+  the advice and the co-working network).
 
 There are no missing or negative counts (those would be errors, not fixes). The script prints the
 line number (header = line 1) of every deliberate fault.
@@ -349,6 +350,12 @@ def main() -> None:
     clean = make_advice(rng, staff, isolates)
     advice, faults = add_faults(rng, clean, staff, isolates)
     coworking = make_coworking(rng, staff)
+    # The new hire also named a co-worker, the manager they ask for advice: both networks then
+    # hold the same 61 people, so the [[relations]] table can compare them tie by tie.
+    new_hire = next(r for kind, r in faults if kind == "unknown id")
+    coworking = pd.concat([coworking, pd.DataFrame([{"source": new_hire["source"],
+                                                     "target": new_hire["target"]}])],
+                          ignore_index=True)
 
     DATA.mkdir(exist_ok=True)
     options = {"index": False, "encoding": "utf-8", "lineterminator": "\n"}

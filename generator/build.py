@@ -17,9 +17,11 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TextIO
 
+import pandas as pd
+
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
-from .analyse.compare import compare_series
+from .analyse.compare import compare_relations, compare_series
 from .analyse.two_mode import analyse_two_mode, project
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
 from .config import (
@@ -28,6 +30,7 @@ from .config import (
     NetworkConfig,
     SignificanceConfig,
     StudyConfig,
+    check_relation_data,
     load_study,
 )
 from .draw import Figure, FigureSettings, draw_network
@@ -48,12 +51,14 @@ from .publish import (
 )
 from .publish.archive import zip_time
 from .publish.lock import LockOwner, hold_study_lock
+from .publish.relations import relation_files, relation_resources
 from .publish.series import series_files, series_resources
 from .publish.site import recover_interrupted_site
 from .publish.two_mode import two_mode_files, two_mode_resources
 from .render import NetworkPageInput, render_site
 from .render.compare import SeriesInput, series_title
 from .render.node_view import node_view_limit
+from .render.relations_page import RelationsInput
 from .render.site import PartnerCopy, render_notes
 from .render.site_map import ALL_DATA, DATAPACKAGE, compare_figure, explorer_file
 from .render.theme import load_theme
@@ -63,7 +68,7 @@ from .vocabulary import count_of
 
 __all__ = ["BuildResult", "Progress", "Rebuilder", "Workers", "build_info_stamp", "build_study",
            "check_study", "clean_study", "read_notes", "read_text", "site_files", "study_analyses",
-           "study_results"]
+           "study_relations", "study_results"]
 
 
 class Progress:
@@ -259,6 +264,7 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
     """Validate config and data without building; pass every finding to ``report``."""
     study = load_study(project)
     cleaned = _read_all(study, Progress(quiet=True))  # raises with the errors of every network
+    _check_relations(study, list(cleaned.values()))
     for clean in cleaned.values():
         for finding in clean.checks.findings:
             report(finding)
@@ -524,12 +530,16 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
                notes: dict[str, str], summary: str | None, build_info: dict[str, str],
                progress: Progress, cache: ResultCache | None,
                partner: PartnerCopy | None = None,
+               relations: list[RelationsInput] | None = None,
                drawn: dict[str, list[Figure]] | None = None) -> dict[str, bytes]:
     """Every file of the site but the marker and manifest: figures, pages and downloads.
     ``cache`` None draws and writes everything anew and keeps nothing. ``partner`` makes a
     partner copy (pass ``cache`` None with it): its notice on every page, its sharing page,
-    and network maps that name nodes only if ``partner.labels``. ``drawn``: figures already
-    drawn (by ``study_results``), by network id; the others are drawn here."""
+    and network maps that name nodes only if ``partner.labels``. ``relations`` are the
+    comparisons of networks on the same nodes; None computes them from ``analyses`` (a
+    partner copy passes them computed from the full analyses, node ids then coded).
+    ``drawn``: figures already drawn (by ``study_results``), by network id; the others are
+    drawn here."""
     inputs = []
     files: dict[str, bytes] = {}
     shown: dict[str, str] = {}  # per network: the key of what its pages show
@@ -582,6 +592,8 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             files[base + ".svg"] = figure.svg
             files[base + ".png"] = figure.png
     series = study_series(study, analyses, progress)
+    if relations is None:
+        relations = study_relations(study, analyses, progress)
     resources = [r for two in two_mode for r in two_mode_resources(two.analysis)]
     by_id = {a.network_id: a for a in analyses}
     for compared in series:
@@ -591,6 +603,9 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
         for figure in compared.figures:
             files[compare_figure(name, figure.name, "svg")] = figure.svg
             files[compare_figure(name, figure.name, "png")] = figure.png
+    for relation in relations:
+        files.update(relation_files(relation.comparison))
+        resources += relation_resources(relation.comparison, relation.title)
     files[DATAPACKAGE] = datapackage_json(analyses, title=study.title, extra=resources)
     files[ALL_DATA] = all_data_zip(files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
 
@@ -601,7 +616,7 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
                         reuse=reuse, partner=partner,
                         sizes={path: len(data) for path, data in files.items()},
-                        series=series, two_mode=two_mode)
+                        series=series, two_mode=two_mode, relations=relations)
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     return files
@@ -626,6 +641,51 @@ def study_series(study: StudyConfig, analyses: list[NetworkAnalysis], progress: 
         found.append(SeriesInput(comparison, tuple(figures)))
         progress.stage("compare", f"{name}: {count_of(len(waves), 'wave')}")
     return found
+
+
+def study_relations(study: StudyConfig, analyses: list[NetworkAnalysis], progress: Progress
+                    ) -> list[RelationsInput]:
+    """Every ``[[relations]]`` table compared, in study order; raises a ConfigError naming the
+    line of study.toml when its networks are not on the same nodes or its model names an
+    attribute they lack. Quick (a fraction of a second for a few hundred nodes), so not cached;
+    every permutation derives from the study seed."""
+    if not study.relations:
+        return []
+    _check_relations(study, analyses)
+    by_id = {a.network_id: a for a in analyses}
+    found = []
+    for relation in study.relations:
+        model = relation.model
+        comparison = compare_relations(
+            relation.id, [by_id[i] for i in relation.networks],
+            permutations=relation.permutations, seed=study.seed,
+            outcome=model.outcome if model else None,
+            predictors=model.predictors if model else (), same=model.same if model else (),
+            difference=model.difference if model else ())
+        found.append(RelationsInput(comparison, relation.title))
+        progress.stage("compare", f"{relation.id}: {count_of(len(relation.networks), 'network')}"
+                       f", {count_of(relation.permutations, 'permutation')}")
+    return found
+
+
+def _check_relations(study: StudyConfig, networks: list[CleanNetwork] | list[NetworkAnalysis]
+                     ) -> None:
+    """The node sets and attributes the ``[[relations]]`` tables rely on (see
+    ``config.check_relation_data``)."""
+    if not study.relations:
+        return
+    node_ids: dict[str, frozenset[str]] = {}
+    attributes: dict[str, dict[str, str]] = {}
+    for net in networks:
+        net_id = net.id if isinstance(net, CleanNetwork) else net.network_id
+        node_ids[net_id] = frozenset(str(n) for n in net.nodes.index)
+        kinds = {}
+        for column in net.attributes:
+            values = net.nodes[column]
+            numeric = pd.api.types.is_numeric_dtype(values.dtype)
+            kinds[column] = "text" if not numeric else "gaps" if values.isna().any() else "number"
+        attributes[net_id] = kinds
+    check_relation_data(study, node_ids, attributes)
 
 
 def clean_study(project: Path | str) -> list[Path]:

@@ -28,10 +28,13 @@ __all__ = [
     "NETWORK_KEYS",
     "NetworkConfig",
     "NetworkSource",
+    "RelationModelConfig",
+    "RelationsConfig",
     "SharingConfig",
     "SignificanceConfig",
     "SiteConfig",
     "StudyConfig",
+    "check_relation_data",
     "load_study",
     "projections",
 ]
@@ -52,6 +55,7 @@ DEFAULT_PERTURBATIONS = 50
 DEFAULT_PERTURB_SHARE = 0.1
 DEFAULT_EXACT_PATHS_UP_TO = 5000
 DEFAULT_PATH_SAMPLE_SOURCES = 500
+DEFAULT_PERMUTATIONS = 1000  # QAP and MRQAP node-label permutations of a [[relations]] table
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -188,6 +192,34 @@ class BuildConfig:
 
 
 @dataclass(frozen=True, kw_only=True)
+class RelationModelConfig:
+    """``model = {...}`` of a ``[[relations]]`` table: the outcome relation regressed on the
+    predictor relations, on "both nodes share the value" of each ``same`` attribute and on the
+    absolute difference of each ``difference`` attribute."""
+
+    outcome: str
+    predictors: tuple[str, ...] = ()
+    same: tuple[str, ...] = ()
+    difference: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, kw_only=True)
+class RelationsConfig:
+    """One ``[[relations]]`` table: networks on the same nodes compared on ``compare/<id>.html``."""
+
+    id: str
+    title: str
+    networks: tuple[str, ...]
+    permutations: int = DEFAULT_PERMUTATIONS
+    model: RelationModelConfig | None = None
+    index: int = field(default=1, compare=False)  # its place among the [[relations]] tables
+
+    @property
+    def dotted(self) -> str:
+        return f"relations[{self.index}]"
+
+
+@dataclass(frozen=True, kw_only=True)
 class StudyConfig:
     """The whole of study.toml, with every path made absolute and checked to lie in ``root``."""
 
@@ -204,6 +236,7 @@ class StudyConfig:
     sharing: SharingConfig = field(default_factory=SharingConfig)
     site: SiteConfig = field(default_factory=SiteConfig)
     build: BuildConfig = field(default_factory=BuildConfig)
+    relations: tuple[RelationsConfig, ...] = ()  # networks on the same nodes, compared
 
     @property
     def study_file(self) -> Path:
@@ -444,8 +477,8 @@ def projections(net: NetworkConfig) -> tuple[NetworkConfig, NetworkConfig]:
         for mode in net.modes)
 
 
-_TOP = ("study", "network", "communities", "significance", "measures", "sharing", "site",
-        "build")
+_TOP = ("study", "network", "relations", "communities", "significance", "measures", "sharing",
+        "site", "build")
 
 
 def load_study(project: Path | str) -> StudyConfig:
@@ -475,9 +508,14 @@ def _key_line(text: str, dotted: str) -> int | None:
     when it cannot be found (a key set in an inline table, say)."""
     table, _, key = dotted.rpartition(".")
     inside = table == ""
+    array = re.fullmatch(r"([a-z_]+)\[(\d+)\]", table)  # the n-th [[name]] table
+    seen = 0
     for number, raw in enumerate(text.splitlines(), start=1):
         line = raw.split("#", 1)[0].strip()
-        if line.startswith("["):
+        if line.startswith("[[") and array:
+            seen += line.strip("[] ") == array[1]
+            inside = line.strip("[] ") == array[1] and seen == int(array[2])
+        elif line.startswith("["):
             inside = line.strip("[] ") == table
         elif inside and line.partition("=")[0].strip().strip('"\'') == key and "=" in line:
             return number
@@ -551,6 +589,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     title = s.get("title", str, required=True)
     if not title.strip():
         raise ConfigError("may not be empty", key="study.title")
+    relations = _relations(raw.get("relations", []), written)
     return StudyConfig(
         root=root,
         title=title.strip(),
@@ -584,6 +623,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
                         allow_html=si.get("allow_html", bool, False),
                         node_views=si.get("node_views", bool, None)),
         build=BuildConfig(cluster=cluster.strip() if cluster is not None else None),
+        relations=relations,
     )
 
 
@@ -624,3 +664,170 @@ def _check_waves(networks: tuple[NetworkConfig, ...]) -> None:
             raise ConfigError(f"series '{net.series}' already has a wave {net.wave}",
                               key=f"network[{i + 1}].wave")
         by_series[net.series].add(net.wave)
+
+
+# ---------------------------------------------------------------------------------------------
+# Relations on the same nodes
+
+_RELATIONS_KEYS = ("id", "title", "networks", "permutations", "model")
+_MODEL_KEYS = ("outcome", "predictors", "same", "difference")
+
+
+def _relations(raw: Any, written: tuple[NetworkConfig, ...]) -> tuple[RelationsConfig, ...]:
+    """Every ``[[relations]]`` table; its id shares compare/ with the series, so neither may
+    repeat the other. Errors name the line of study.toml and the value."""
+    if not isinstance(raw, list):
+        raise ConfigError(f"must be written as [[relations]] tables, got {_describe(raw)}",
+                          key="relations", locate=True)
+    networks = {net.id: net for net in written if not net.two_mode}
+    projected = {p.id for net in written if net.two_mode for p in projections(net)}
+    series = {net.series for net in written if net.series is not None}
+    found: list[RelationsConfig] = []
+    for index, data in enumerate(raw, start=1):
+        dotted = f"relations[{index}]"
+        t = _Table(data, dotted, _RELATIONS_KEYS)
+        rel_id = t.get("id", str, required=True)
+        if not _ID.fullmatch(rel_id):
+            raise ConfigError(f"'{rel_id}' may hold only a-z, 0-9 and '-' (it names the page "
+                              f"compare/{rel_id}.html)", key=f"{dotted}.id", locate=True)
+        for other in found:
+            if other.id == rel_id:
+                raise ConfigError(f"id '{rel_id}' is already used by relations[{other.index}]",
+                                  key=f"{dotted}.id", locate=True)
+        if rel_id in series:
+            raise ConfigError(f"id '{rel_id}' is also the name of a series of waves; both would "
+                              f"be the page compare/{rel_id}.html: give the relations another "
+                              "id", key=f"{dotted}.id", locate=True)
+        names = _network_list(t, "networks", networks, projected, required=True)
+        if len(names) < 2:
+            raise ConfigError(f"compares networks on the same nodes, so it needs two or more; "
+                              f"got {_describe(list(names))}", key=f"{dotted}.networks",
+                              locate=True)
+        permutations = t.data.get("permutations", DEFAULT_PERMUTATIONS)
+        if (isinstance(permutations, bool) or not isinstance(permutations, int)
+                or permutations < 1):
+            raise ConfigError(f"must be a whole number, 1 or more (the node-label permutations "
+                              f"behind each p-value), got {_describe(permutations)}",
+                              key=f"{dotted}.permutations", locate=True)
+        title = t.get("title", str, rel_id)
+        if not title.strip():
+            raise ConfigError("may not be empty", key=f"{dotted}.title", locate=True)
+        model = _relation_model(t, names, dotted)
+        found.append(RelationsConfig(id=rel_id, title=title.strip(), networks=names,
+                                     permutations=permutations, model=model, index=index))
+    return tuple(found)
+
+
+def _network_list(t: _Table, name: str, networks: dict[str, NetworkConfig], projected: set[str],
+                  *, required: bool = False, key: str | None = None) -> tuple[str, ...]:
+    """A list of one-mode network ids, each known and named once."""
+    key = key or f"{t.dotted}.{name}"
+    values = t.data.get(name)
+    if values is None and not required:
+        return ()
+    if not isinstance(values, list) or not all(isinstance(v, str) for v in values):
+        raise ConfigError(f"must be a list of network ids, got {_describe(values)}", key=key,
+                          locate=True)
+    for value in values:
+        if value in projected:
+            continue
+        if value not in networks:
+            known = [*networks, *sorted(projected)]
+            close = difflib.get_close_matches(value, known, n=1, cutoff=0.5)
+            hint = f"; did you mean '{close[0]}'?" if close else f"; networks: {', '.join(known)}"
+            raise ConfigError(f"names '{value}', which is not the id of a network{hint}",
+                              key=key, locate=True)
+    repeated = [v for i, v in enumerate(values) if v in values[:i]]
+    if repeated:
+        raise ConfigError(f"names '{repeated[0]}' twice", key=key, locate=True)
+    return tuple(values)
+
+
+def _relation_model(t: _Table, names: tuple[str, ...], dotted: str) -> RelationModelConfig | None:
+    if "model" not in t.data:
+        return None
+    key = f"{dotted}.model"
+    data = t.data["model"]
+    if not isinstance(data, dict):
+        raise ConfigError(f"must be a table such as {{ outcome = \"{names[0]}\", predictors = "
+                          f"[\"{names[1]}\"] }}, got {_describe(data)}", key=key, locate=True)
+    unknown = [k for k in data if k not in _MODEL_KEYS]
+    if unknown:
+        close = difflib.get_close_matches(unknown[0], _MODEL_KEYS, n=1, cutoff=0.5)
+        hint = f"; did you mean '{close[0]}'?" if close else f"; valid keys: {', '.join(_MODEL_KEYS)}"
+        raise ConfigError(f"unknown key '{unknown[0]}'{hint}", key=key, locate=True)
+    outcome = data.get("outcome")
+    if not isinstance(outcome, str):
+        raise ConfigError(f"needs 'outcome', the id of one of the networks {', '.join(names)}"
+                          + (f"; got {_describe(outcome)}" if outcome is not None else ""),
+                          key=key, locate=True)
+
+    def among(value: str, what: str) -> None:
+        if value not in names:
+            raise ConfigError(f"{what} '{value}' is not one of this table's networks "
+                              f"({', '.join(names)})", key=key, locate=True)
+
+    among(outcome, "outcome")
+    lists: dict[str, tuple[str, ...]] = {}
+    for name in ("predictors", "same", "difference"):
+        values = data.get(name, [])
+        if not isinstance(values, list) or not all(isinstance(v, str) and v.strip()
+                                                   for v in values):
+            what = "network ids" if name == "predictors" else "node attribute names"
+            raise ConfigError(f"'{name}' must be a list of {what}, got {_describe(values)}",
+                              key=key, locate=True)
+        repeated = [v for i, v in enumerate(values) if v in values[:i]]
+        if repeated:
+            raise ConfigError(f"'{name}' names '{repeated[0]}' twice", key=key, locate=True)
+        lists[name] = tuple(values)
+    for predictor in lists["predictors"]:
+        among(predictor, "predictor")
+        if predictor == outcome:
+            raise ConfigError(f"'{outcome}' is both the outcome and a predictor", key=key,
+                              locate=True)
+    if not any(lists.values()):
+        raise ConfigError("has no terms: give 'predictors', 'same' or 'difference'", key=key,
+                          locate=True)
+    return RelationModelConfig(outcome=outcome, **lists)
+
+
+def check_relation_data(study: StudyConfig, node_ids: dict[str, frozenset[str]],
+                        attributes: dict[str, dict[str, str]]) -> None:
+    """What study.toml cannot show alone: the networks of each ``[[relations]]`` table have the
+    same nodes, and the model's attributes exist. ``node_ids`` maps a network id to its node
+    ids; ``attributes`` to its node attributes, each "number", "gaps" (a number with missing
+    values) or "text". Raises a ConfigError naming the line of study.toml."""
+    for relation in study.relations:
+        dotted = relation.dotted
+        first = relation.networks[0]
+        for other in relation.networks[1:]:
+            if node_ids[other] != node_ids[first]:
+                only = sorted(node_ids[first] ^ node_ids[other])
+                raise _located(study, f"networks '{first}' and '{other}' are not on the same "
+                               f"nodes ({len(only)} nodes are in one only, such as "
+                               f"'{only[0]}'); relations are compared on one node set",
+                               f"{dotted}.networks")
+        model = relation.model
+        if model is None:
+            continue
+        known = attributes[model.outcome]
+        for name in (*model.same, *model.difference):
+            if name not in known:
+                close = difflib.get_close_matches(name, list(known), n=1, cutoff=0.5)
+                hint = (f"; did you mean '{close[0]}'?" if close else
+                        f"; its attributes: {', '.join(known) or 'none'}")
+                raise _located(study, f"'{name}' is not a node attribute of '{model.outcome}'"
+                               f"{hint}", f"{dotted}.model")
+        for name in model.difference:
+            if known[name] == "text":
+                raise _located(study, f"'difference' needs a numeric attribute, and '{name}' "
+                               "holds text; put it under 'same'", f"{dotted}.model")
+            if known[name] == "gaps":
+                raise _located(study, f"'{name}' is missing for some nodes, so their difference "
+                               "is unknown; fill it in or leave it out of 'difference'",
+                               f"{dotted}.model")
+
+
+def _located(study: StudyConfig, message: str, key: str) -> ConfigError:
+    text = study.study_file.read_text(encoding="utf-8-sig") if study.study_file.is_file() else ""
+    return ConfigError(message, key=key, path=study.study_file, line=_key_line(text, key))

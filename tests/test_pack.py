@@ -27,7 +27,7 @@ from generator.config import load_study
 from generator.errors import Finding
 from generator.pack import pack_study
 from generator.pack.bundle import BUNDLE_COMMENT, sha256sums, title_slug, zip_time
-from generator.pack.codes import KEY_FILE, node_codes
+from generator.pack.codes import KEY_FILE, node_codes, read_study_key
 from generator.pack.leaks import Secret, SecretMatcher, find_leaks, png_text
 from generator.pack.protect import Protection, other_group, protect_analysis, redact_finding
 from generator.pack.wording import BundleFacts, readme_text
@@ -625,3 +625,25 @@ def test_key_file_stays_out_of_the_bundle_even_when_a_note_shows_it(tmp_path, ca
     assert main(["pack", str(root), "-q"]) == 1
     err = capsys.readouterr().err
     assert "notes/oops.html holds a copy of the study's secret key" in err and key not in err
+
+
+def test_a_relations_page_in_a_bundle_names_nodes_by_code_and_keeps_the_numbers(tmp_path):
+    root = _study(tmp_path / "s")
+    rng = random.Random(5)
+    others = sorted({tuple(sorted(rng.sample(IDS, 2))) for _ in range(30)}) + [(IDS[3], STRANGER)]
+    (root / "data/met.csv").write_text(csv_text(["source", "target"], others), encoding="utf-8")
+    with open(root / "study.toml", "a", encoding="utf-8") as toml:
+        toml.write('\n[[network]]\nid = "met"\nedges = "data/met.csv"\nnodes = "data/nodes.csv"\n'
+                   'label = "name"\n\n[[relations]]\nid = "advice-and-met"\n'
+                   'networks = ["outreach", "met"]\npermutations = 49\n'
+                   'model = { outcome = "outreach", predictors = ["met"], same = ["clinic"] }\n')
+    full = build_study(root).output
+    files = _unzip(pack_study(root).path)  # the leak scan found no id, label or email
+    page = files["compare/advice-and-met.html"].decode("utf-8")
+    for secret in (*IDS, *NAMES, STRANGER):
+        assert secret not in page
+    codes = node_codes([*IDS, STRANGER], read_study_key(root).secret)
+    assert all(f"<th scope=\"row\">{code}</th>" in page for code in codes.values())
+    for name in ("pairs.csv", "model.csv"):  # computed on the full data: the same numbers
+        path = f"files/relations/advice-and-met/{name}"
+        assert files[path] == (full / path).read_bytes()

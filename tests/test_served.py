@@ -39,7 +39,7 @@ PAGE_KINDS = ["index.html", "networks/advice/index.html", "networks/coworking/in
               "networks/advice/nodes.html", "networks/advice/nodes/node-10.html",
               "methods.html", "checks.html", "downloads.html", "notes/methods.html",
               "networks/advice/communities.html", "compare/advice.html",
-              "networks/training/index.html"]
+              "networks/training/index.html", "compare/advice-and-coworking.html"]
 CONFIG = """
 worker_processes 1;
 {user}

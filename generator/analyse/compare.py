@@ -30,9 +30,12 @@ __all__ = [
     "NodeChange",
     "QapResult",
     "RegressionResult",
+    "RelationPair",
+    "RelationsComparison",
     "SeriesComparison",
     "TieChange",
     "community_flow",
+    "compare_relations",
     "compare_series",
     "difference_matrix",
     "jaccard",
@@ -307,6 +310,11 @@ def mrqap(outcome: np.ndarray, predictors: dict[str, np.ndarray], *, directed: b
     sd_y = y.std()
     p_values: list[float | None] = []
     for k, name in enumerate(names):
+        if not np.isfinite(t_observed[k + 1]) or columns[k].std() == 0:
+            # A term with no variation (every pair shares the clinic, a network with no ties)
+            # has no t to beat: no p-value, rather than the smallest one by default.
+            p_values.append(None)
+            continue
         others = np.column_stack([np.ones(len(y))] + [c for j, c in enumerate(columns) if j != k])
         fitted, *_ = np.linalg.lstsq(others, columns[k], rcond=None)
         # Back to a matrix, so that its rows and columns are permuted together.
@@ -369,3 +377,84 @@ def compare_series(series: str, waves: Sequence[tuple[int, NetworkAnalysis]]) ->
         nodes=tuple(node_change(a, b) for a, b in pairs),
         flows=tuple(community_flow(a, b) for a, b in pairs),
     )
+
+
+@dataclass(frozen=True)
+class RelationPair:
+    """Two relations on the same nodes: the Jaccard index of their tie sets (compared as
+    undirected pairs unless both are directed) and the QAP test of their tie values."""
+
+    network_a: str
+    network_b: str
+    jaccard: float | None
+    qap: QapResult
+
+
+@dataclass(frozen=True)
+class RelationsComparison:
+    """Networks on one node set compared: every pair, each node's degree in each network, and
+    the regression of one relation on the others and on node attributes (None when not asked
+    for). Remembers its permutations and seed."""
+
+    relation: str
+    networks: tuple[str, ...]
+    nodes: tuple[str, ...]  # ids, in the first network's node order
+    degrees: tuple[tuple[int, ...], ...]  # per node, its degree in each network
+    pairs: tuple[RelationPair, ...]
+    model: RegressionResult | None
+    model_directed: bool  # the model used every ordered pair of nodes, not each pair once
+    permutations: int
+    seed: int
+
+
+def _undirected_ties(analysis: NetworkAnalysis) -> frozenset[tuple[str, str]]:
+    return frozenset((a, b) if a <= b else (b, a) for a, b in tie_set(analysis))
+
+
+def compare_relations(relation: str, analyses: Sequence[NetworkAnalysis], *, permutations: int,
+                      seed: int, outcome: str | None = None, predictors: Sequence[str] = (),
+                      same: Sequence[str] = (), difference: Sequence[str] = ()
+                      ) -> RelationsComparison:
+    """``analyses`` are networks on the same node ids (the caller checks). Each pair gets its
+    Jaccard index and a QAP correlation (directed cells when either network is directed; an
+    undirected network's matrix is symmetric). With an ``outcome``, MRQAP regresses it on the
+    ``predictors`` (network ids), on a 1/0 "same value" matrix per ``same`` attribute and on
+    an absolute-difference matrix per ``difference`` attribute, attributes read from the
+    outcome's node table. Term names: the network id, ``same:<attribute>``,
+    ``difference:<attribute>``."""
+    by_id = {a.network_id: a for a in analyses}
+    first = analyses[0]
+    order = [str(node) for node in first.nodes.index]
+    matrices = {a.network_id: relation_matrix(a, order) for a in analyses}
+    pairs = []
+    for i, a in enumerate(analyses):
+        for b in analyses[i + 1:]:
+            both_directed = a.directed and b.directed
+            ties_a = tie_set(a) if both_directed else _undirected_ties(a)
+            ties_b = tie_set(b) if both_directed else _undirected_ties(b)
+            qap = qap_correlation(matrices[a.network_id], matrices[b.network_id],
+                                  directed=a.directed or b.directed, permutations=permutations,
+                                  seed=seed, label=(a.network_id, b.network_id))
+            pairs.append(RelationPair(a.network_id, b.network_id, jaccard(ties_a, ties_b), qap))
+    degrees = []
+    for a in analyses:
+        column = a.measures["degree"].set_axis([str(n) for n in a.measures.index])
+        degrees.append([int(column[node]) for node in order])
+    model = None
+    model_directed = False
+    if outcome is not None:
+        used = [by_id[outcome], *(by_id[name] for name in predictors)]
+        model_directed = any(a.directed for a in used)
+        terms = {name: matrices[name] for name in predictors}
+        table = by_id[outcome].nodes.set_axis([str(n) for n in by_id[outcome].nodes.index])
+        for attribute in same:
+            terms[f"same:{attribute}"] = same_matrix(list(table[attribute].reindex(order)))
+        for attribute in difference:
+            terms[f"difference:{attribute}"] = difference_matrix(
+                list(table[attribute].reindex(order).astype(float)))
+        model = mrqap(matrices[outcome], terms, directed=model_directed,
+                      permutations=permutations, seed=seed, outcome_name=outcome)
+    return RelationsComparison(
+        relation=relation, networks=tuple(a.network_id for a in analyses), nodes=tuple(order),
+        degrees=tuple(tuple(row) for row in zip(*degrees)), pairs=tuple(pairs), model=model,
+        model_directed=model_directed, permutations=permutations, seed=seed)

@@ -12,13 +12,21 @@ import os
 import tempfile
 import zipfile
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import pandas as pd
 
 from ..analyse import NetworkAnalysis
-from ..build import Progress, build_info_stamp, read_notes, read_text, site_files, study_analyses
+from ..build import (
+    Progress,
+    build_info_stamp,
+    read_notes,
+    read_text,
+    site_files,
+    study_analyses,
+    study_relations,
+)
 from ..cache import CACHE_DIR, ResultCache, analysis_key
 from ..config import StudyConfig, load_study
 from ..errors import ConfigError, DataError
@@ -35,6 +43,7 @@ from .protect import (
     Protection,
     label_column,
     protect_analysis,
+    protect_relations,
     protect_study,
     secrets_of,
     shown_values,
@@ -117,9 +126,12 @@ def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep
         protections=protections(facts), cautions=CAUTIONS, contact=facts.contact,
         labels=keep_labels)
     build_info = build_info_stamp()
+    # Relations are compared on the full analyses, so the bundle's numbers are the report's.
+    relations = [replace(r, comparison=protect_relations(r.comparison, protection))
+                 for r in study_relations(study, analyses, progress)]
     site = site_files(protect_study(study, protection), protected, keys, notes=notes,
                       summary=summary, build_info=build_info, progress=progress, cache=None,
-                      partner=partner)
+                      partner=partner, relations=relations)
     grouped = {f"{a.network_id}-nodes": {c for c in a.attributes if c not in facts.numeric}
                for a in protected}
     site[DATAPACKAGE] = partner_datapackage(site[DATAPACKAGE], pseudonymized=sharing.pseudonymize,

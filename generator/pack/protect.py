@@ -17,6 +17,7 @@ import pandas as pd
 
 from ..analyse import NetworkAnalysis
 from ..analyse.communities import merge_values
+from ..analyse.compare import RelationsComparison
 from ..analyse.mixing import merge_groups
 from ..config import NetworkConfig, StudyConfig
 from ..errors import Finding
@@ -24,7 +25,8 @@ from ..vocabulary import exact_text
 from .leaks import Secret, SecretMatcher
 
 __all__ = [
-    "Protection", "WITHHELD", "label_column", "other_group", "protect_analysis", "protect_study",
+    "Protection", "WITHHELD", "label_column", "other_group", "protect_analysis",
+    "protect_relations", "protect_study",
     "redact_finding", "secrets_of", "shown_values", "small_groups",
 ]
 
@@ -146,6 +148,18 @@ def protect_analysis(analysis: NetworkAnalysis, net: NetworkConfig, protection: 
         stability=stability,
         attribute_comparisons=compared,
     )
+
+
+def protect_relations(comparison: RelationsComparison, protection: Protection
+                      ) -> RelationsComparison:
+    """The comparison with node ids replaced by codes and its rows in code order; every number
+    stays as the full report has it (it was computed on the full analyses, attributes and all)."""
+    codes = protection.codes
+    if codes is None:
+        return comparison
+    rows = sorted(zip((codes[node] for node in comparison.nodes), comparison.degrees))
+    return replace(comparison, nodes=tuple(code for code, _ in rows),
+                   degrees=tuple(degrees for _, degrees in rows))
 
 
 def _coded_edges(analysis: NetworkAnalysis, codes: Mapping[str, str] | None) -> pd.DataFrame:

@@ -166,6 +166,7 @@ class DownloadsPage:
     networks: tuple[NetworkDownloads, ...]
     site_files: tuple[DownloadFile, ...]
     two_mode: tuple[object, ...] = ()  # the two-mode networks' files (render.two_mode_page)
+    relations: tuple[object, ...] = ()  # each [[relations]] table's files (render.relations_page)
 
 
 def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],

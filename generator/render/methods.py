@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from collections.abc import Iterable
-from dataclasses import dataclass
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, replace
 from urllib.parse import quote
 
 from ..config import EdgeListSource
@@ -20,11 +20,14 @@ from ..vocabulary import (
     statistic,
 )
 from ..vocabulary.mixing import mixing_method_text
+from ..vocabulary.references import REFERENCES
+from ..vocabulary.relations import RELATIONS_REFERENCES
 from .communities_page import stability_methods
 from .describe import a_network, method_title, references_of, weight_reading, weights_sentence
 from .inputs import NetworkPageInput
 from .mixing import isolates_text
 from .network_page import omitted_measures, sampling_sentence
+from .relations_page import RelationsInput, RelationsMethods, relations_methods
 from .site_map import CHECKS, PageFrame, network_page
 
 __all__ = [
@@ -284,17 +287,27 @@ class MethodsPage:
     networks: tuple[NetworkMethods, ...]
     references: tuple[ReferenceEntry, ...]
     two_mode: tuple[object, ...] = ()  # the two-mode networks' sections (render.two_mode_page)
+    relations: tuple[RelationsMethods, ...] = ()  # one per [[relations]] table
 
 
 def methods_context(frame: PageFrame, networks: list[NetworkPageInput],
-                    relative_paths: dict[str, dict[str, str]], *, link_dois: bool = True
-                    ) -> MethodsPage:
-    """``relative_paths`` maps a network id to its input files as the user wrote them."""
+                    relative_paths: dict[str, dict[str, str]], *, link_dois: bool = True,
+                    relations: Sequence[RelationsInput] = ()) -> MethodsPage:
+    """``relative_paths`` maps a network id to its input files as the user wrote them;
+    ``relations`` are the comparisons of networks on the same nodes, each with its section."""
     references = [ref for item in networks for ref in references_of(item.analysis)]
+    titles = {item.id: item.title for item in networks}
+    sections = [relations_methods(relation, frame, titles) for relation in relations]
+    if sections:
+        keys = [k for section in sections for _, cited in section.paragraphs for k in cited]
+        references += [REFERENCES[k] for k in dict.fromkeys((*RELATIONS_REFERENCES, *keys))]
     cite = _Citations(references)
     return MethodsPage(
         page=frame,
         networks=tuple(network_methods(item, frame, cite, relative_paths.get(item.id, {}))
                        for item in networks),
         references=reference_entries(references, link_dois=link_dois),
+        relations=tuple(replace(section, paragraphs=tuple(
+            (text, cite.cite(cited)) for text, cited in section.paragraphs))
+            for section in sections),
     )

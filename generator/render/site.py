@@ -23,6 +23,7 @@ from .node_view import node_view_contexts
 from .nodes_page import nodes_context
 from .notes import RenderedNote, render_markdown
 from .overview import overview_context
+from .relations_page import RelationsInput, relations_context, relations_downloads
 from .search import SEARCH_INDEX, search_entries, search_index
 from .site_map import (
     CHECKS,
@@ -136,7 +137,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                 partner: PartnerCopy | None = None,
                 sizes: Mapping[str, int] | None = None,
                 series: Sequence[SeriesInput] = (),
-                two_mode: Sequence[TwoModeInput] = ()) -> dict[str, bytes]:
+                two_mode: Sequence[TwoModeInput] = (),
+                relations: Sequence[RelationsInput] = ()) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -151,7 +153,9 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     ``sizes`` maps the path of each download and figure to its size in bytes, for the downloads
     page. ``series`` holds the comparison of every series of two or more waves. ``two_mode``
     are the two-mode networks: each gets its page and its sections of the
-    methods and downloads pages (their projections are among ``networks``).
+    methods and downloads pages (their projections are among ``networks``). ``relations``
+    are the comparisons of networks on the same nodes: a page each under compare/, and their
+    sections of the methods and downloads pages.
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -165,6 +169,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         notice=partner.notice if partner is not None else "",
         series=[(s.comparison.series, series_title(s.comparison.series)) for s in series],
         two_mode=[(item.id, item.title) for item in two_mode],
+        relations=[(item.id, item.title) for item in relations],
     )
     terms = None
     if partner is not None and partner.terms is not None:
@@ -178,7 +183,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             files_as_written[item.id]["nodes"] = study.relative(item.config.nodes)
     pages: list[tuple[str, str, object]] = []
     reused: dict[str, bytes] = {}
-    frame_key = _digest(site.study_title, site.networks, site.notes, site.series, site.version,
+    frame_key = _digest(site.study_title, site.networks, site.notes, site.series, site.relations,
+                        site.version,
                         theme.digest(), link_dois, build_info.get("built", ""))
 
     def keep(path: str, *parts: object) -> bool:
@@ -225,13 +231,20 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         pages.append((path, "compare.html", compare_context(
             compared, by_id, site.frame(path, series_title(compared.comparison.series)))))
 
+    for relation in relations:
+        path = compare_page(relation.id)
+        pages.append((path, "relations.html", relations_context(
+            relation, by_id, site.frame(path, relation.title))))
+    # What the relations sections of the methods and downloads pages show.
+    relations_shown = [repr(relation.comparison) for relation in relations]
+
     for two in two_mode:
         path = network_page(two.id)
         pages.append((path, "two_mode.html", two_mode_page(two, site.frame(path, two.title))))
-    if not keep(METHODS, every_network):
+    if not keep(METHODS, every_network, relations_shown):
         frame = site.frame(METHODS, "Methods")
         pages.append((METHODS, "methods.html", replace(methods_context(
-            frame, networks, files_as_written, link_dois=link_dois),
+            frame, networks, files_as_written, link_dois=link_dois, relations=relations),
             two_mode=tuple(two_mode_methods(two, frame) for two in two_mode))))
     note_findings = written.findings if notes or summary is not None else None
     if terms is not None:  # the terms are often a note too: each finding is listed once
@@ -240,11 +253,14 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         site.frame(CHECKS, "Data checks"), networks, notes=note_findings, two_mode=two_mode)))
     node_files = {net_id: paths["nodes"] for net_id, paths in files_as_written.items()
                   if "nodes" in paths}
-    if not keep(DOWNLOADS, every_network, sorted((sizes or {}).items())):
+    if not keep(DOWNLOADS, every_network, sorted((sizes or {}).items()),
+            relations_shown):
         frame = site.frame(DOWNLOADS, "Downloads")
         pages.append((DOWNLOADS, "downloads.html", replace(
             downloads_context(frame, networks, node_files, sizes),
-            two_mode=tuple(two_mode_downloads(two, frame, sizes or {}) for two in two_mode))))
+            two_mode=tuple(two_mode_downloads(two, frame, sizes or {}) for two in two_mode),
+            relations=tuple(relations_downloads(relation, frame, sizes or {})
+                            for relation in relations))))
 
     for (stem, note), (_, title) in zip(rendered.items(), site.notes):
         path = note_page(stem)

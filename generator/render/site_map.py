@@ -10,7 +10,8 @@ __all__ = [
     "ALL_DATA", "CHECKS", "DATAPACKAGE", "DOWNLOADS", "INDEX", "MANIFEST", "METHODS", "SHARING", "Link",
     "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "communities_page", "compare_figure", "compare_page",
     "explorer_file", "figure_file", "network_file",
-    "network_page", "node_view", "nodes_page", "note_page", "page_href", "series_file",
+    "network_page", "node_view", "nodes_page", "note_page", "page_href", "relations_file",
+    "series_file",
 ]
 
 INDEX = "index.html"
@@ -34,6 +35,11 @@ def compare_figure(series: str, name: str, ext: str) -> str:
 
 def series_file(series: str, name: str) -> str:
     return f"files/series/{series}/{name}"
+
+
+def relations_file(relation: str, name: str) -> str:
+    """A download of one comparison of relations (its page is ``compare_page(relation)``)."""
+    return f"files/relations/{relation}/{name}"
 
 
 def network_page(network_id: str) -> str:
@@ -117,11 +123,13 @@ class SiteMap:
     def __init__(self, *, study_title: str, networks: list[tuple[str, str]],
                  notes: list[tuple[str, str]], version: str, notice: str = "",
                  series: list[tuple[str, str]] | None = None,
-                 two_mode: list[tuple[str, str]] | None = None):
+                 two_mode: list[tuple[str, str]] | None = None,
+                 relations: list[tuple[str, str]] | None = None):
         self.study_title = study_title
         self.two_mode = two_mode or []  # (id, title) of two-mode networks, listed first
         self.networks = networks  # (id, title) in study order
         self.series = series or []  # (series, title) of every series with two or more waves
+        self.relations = relations or []  # (id, title) of every [[relations]] table
         self.notes = notes  # (stem, title), sorted by stem
         self.version = version
         self.notice = notice  # set for a partner copy, which also has the sharing page
@@ -138,6 +146,7 @@ class SiteMap:
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.two_mode]
         nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
         nav += [link(series_title, compare_page(name)) for name, series_title in self.series]
+        nav += [link(title, compare_page(rel_id)) for rel_id, title in self.relations]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
         if self.notice:
             nav.append(link("Sharing", SHARING))

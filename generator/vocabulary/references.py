@@ -87,6 +87,11 @@ _ALL = [
     Reference("krackhardt1988", "Krackhardt, D. & Stern, R. N.: Informal networks and "
               "organizational crises: an experimental simulation. Social Psychology Quarterly "
               "51(2):123-140, 1988.", "10.2307/2786835"),
+    Reference("krackhardt1987", "Krackhardt, D.: QAP partialling as a test of spuriousness. Social "
+              "Networks 9(2):171-186, 1987.", "10.1016/0378-8733(87)90012-8"),
+    Reference("dekker2007", "Dekker, D., Krackhardt, D. & Snijders, T. A. B.: Sensitivity of MRQAP "
+              "tests to collinearity and autocorrelation conditions. Psychometrika 72(4):563-581, "
+              "2007.", "10.1007/s11336-007-9016-1"),
     Reference("fruchterman1991", "Fruchterman, T. M. J. & Reingold, E. M.: Graph drawing by "
               "force-directed placement. Software: Practice and Experience 21(11):1129-1164, 1991.",
               "10.1002/spe.4380211102"),
