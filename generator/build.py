@@ -21,6 +21,7 @@ import pandas as pd
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
+from .analyse.across import study_table
 from .analyse.compare import compare_relations, compare_series
 from .analyse.two_mode import analyse_two_mode, project
 from .cache import CACHE_DIR, CACHE_TAG, ResultCache, analysis_key, figures_key, remove_cache
@@ -34,6 +35,7 @@ from .config import (
     load_study,
 )
 from .draw import Figure, FigureSettings, draw_network
+from .draw.across import draw_study_spread
 from .draw.compare import draw_community_flow, draw_series_statistics
 from .draw.ego import ego_figures
 from .draw.explorer import explorer_data
@@ -50,6 +52,7 @@ from .publish import (
     write_site,
 )
 from .publish.archive import zip_time
+from .publish.downloads import study_statistics_csv, study_statistics_resource
 from .publish.lock import LockOwner, hold_study_lock
 from .publish.relations import relation_files, relation_resources
 from .publish.series import series_files, series_resources
@@ -58,9 +61,17 @@ from .publish.two_mode import two_mode_files, two_mode_resources
 from .render import NetworkPageInput, render_site
 from .render.compare import SeriesInput, series_title
 from .render.node_view import node_view_limit
+from .render.overview import StudyOverview
 from .render.relations_page import RelationsInput
 from .render.site import PartnerCopy, render_notes
-from .render.site_map import ALL_DATA, DATAPACKAGE, compare_figure, explorer_file
+from .render.site_map import (
+    ALL_DATA,
+    DATAPACKAGE,
+    STUDY_STATISTICS,
+    compare_figure,
+    explorer_file,
+    study_figure,
+)
 from .render.theme import load_theme
 from .render.two_mode_page import TwoModeInput
 from .schedule import Workers, default_jobs, run_in_order, worker_pool
@@ -68,7 +79,7 @@ from .vocabulary import count_of
 
 __all__ = ["BuildResult", "Progress", "Rebuilder", "Workers", "build_info_stamp", "build_study",
            "check_study", "clean_study", "read_notes", "read_text", "site_files", "study_analyses",
-           "study_relations", "study_results"]
+           "study_relations", "study_results", "workers_for"]
 
 
 class Progress:
@@ -293,7 +304,7 @@ def build_study(project: Path | str, *, output: Path | None = None,
                      workers=workers).build(fresh=fresh)
 
 
-def _workers_for(study: StudyConfig, asked: Workers | None) -> Workers:
+def workers_for(study: StudyConfig, asked: Workers | None) -> Workers:
     """``--cluster`` first, then ``--jobs``, then ``[build] cluster``, then a process per core."""
     if asked is not None and (asked.cluster is not None or asked.jobs is not None):
         return asked
@@ -331,7 +342,7 @@ class Rebuilder:
             # results are in memory for the edits that follow.
             result = _build_holding_lock(study, self.progress, self._cache_for(study, fresh),
                                          skip_if_current=self.builds > 0 or not self.keep_results,
-                                         workers=_workers_for(study, self.workers))
+                                         workers=workers_for(study, self.workers))
         self.builds += 1
         return result
 
@@ -526,12 +537,27 @@ def study_results(study: StudyConfig, keys: dict[str, str], progress: Progress,
     return [analyses[net.id] for net in study.networks], figures
 
 
+def _draw_all(tasks: list[_NetworkTask], workers: Workers, progress: Progress
+              ) -> list[list[Figure]]:
+    """The figures of each task's analysis (given with it), drawn where ``workers`` says."""
+
+    def drew(index: int, work: _NetworkWork) -> None:
+        assert work.figures is not None
+        progress.stage("draw", f"{tasks[index].network_id}: "
+                       f"{count_of(len(work.figures), 'figure')}")
+
+    with worker_pool(workers, len(tasks)) as executor:
+        done = run_in_order(_network_work, tasks, executor=executor, on_done=drew)
+    return [work.figures or [] for work in done]
+
+
 def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[str, str], *,
                notes: dict[str, str], summary: str | None, build_info: dict[str, str],
                progress: Progress, cache: ResultCache | None,
                partner: PartnerCopy | None = None,
                relations: list[RelationsInput] | None = None,
-               drawn: dict[str, list[Figure]] | None = None) -> dict[str, bytes]:
+               drawn: dict[str, list[Figure]] | None = None,
+               workers: Workers | None = None) -> dict[str, bytes]:
     """Every file of the site but the marker and manifest: figures, pages and downloads.
     ``cache`` None draws and writes everything anew and keeps nothing. ``partner`` makes a
     partner copy (pass ``cache`` None with it): its notice on every page, its sharing page,
@@ -543,6 +569,8 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
     inputs = []
     files: dict[str, bytes] = {}
     shown: dict[str, str] = {}  # per network: the key of what its pages show
+    every_figure: dict[str, list[Figure]] = {}
+    missing: list[_NetworkTask] = []
     for net, analysis in zip(study.networks, analyses):
         settings = _figure_settings(net)
         if partner is not None:
@@ -555,10 +583,22 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
             if figures is not None:
                 progress.stage("draw", f"{net.id}: cached")
         if figures is None:
-            figures = draw_network(analysis, settings)
-            if cache is not None:
-                cache.store_figures(figure_key, figures)
-            progress.stage("draw", f"{net.id}: {count_of(len(figures), 'figure')}")
+            missing.append(_NetworkTask(
+                network_id=net.id, clean=None, analysis=analysis, settings=settings,
+                communities=study.communities, measures=study.measures,
+                significance=study.significance, seed=study.seed, in_worker=True))
+        else:
+            every_figure[net.id] = figures
+    for task, figures in zip(missing, _draw_all(missing, workers or Workers(jobs=1), progress)):
+        every_figure[task.network_id] = figures
+        if cache is not None:
+            assert task.settings is not None
+            cache.store_figures(figures_key(keys[task.network_id], task.settings), figures)
+    for net, analysis in zip(study.networks, analyses):
+        settings = _figure_settings(net)
+        if partner is not None:
+            settings = replace(settings, labels=partner.labels)
+        figures = every_figure[net.id]
         explorer = explorer_data(analysis, settings)
         if explorer is not None:
             files[explorer_file(analysis.network_id)] = explorer.script()
@@ -606,6 +646,13 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
     for relation in relations:
         files.update(relation_files(relation.comparison))
         resources += relation_resources(relation.comparison, relation.title)
+    table = study_table(analyses)
+    files[STUDY_STATISTICS] = study_statistics_csv(table)
+    resources.insert(0, study_statistics_resource(table, STUDY_STATISTICS.removeprefix("files/")))
+    spread_figure = draw_study_spread(table, study.title)
+    if spread_figure is not None:
+        files[study_figure(spread_figure.name, "svg")] = spread_figure.svg
+        files[study_figure(spread_figure.name, "png")] = spread_figure.png
     files[DATAPACKAGE] = datapackage_json(analyses, title=study.title, extra=resources)
     files[ALL_DATA] = all_data_zip(files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
 
@@ -616,7 +663,8 @@ def site_files(study: StudyConfig, analyses: list[NetworkAnalysis], keys: dict[s
     pages = render_site(study, inputs, notes=notes, summary=summary, build_info=build_info,
                         reuse=reuse, partner=partner,
                         sizes={path: len(data) for path, data in files.items()},
-                        series=series, two_mode=two_mode, relations=relations)
+                        series=series, two_mode=two_mode, relations=relations,
+                        overview=StudyOverview(table, spread_figure))
     progress.stage("render", f"{sum(1 for p in pages if p.endswith('.html'))} pages")
     files.update(pages)
     return files

@@ -53,6 +53,9 @@ def _parser() -> argparse.ArgumentParser:
     watch.add_argument("--host", default="127.0.0.1",
                        help="address to serve on (default: 127.0.0.1, this computer only)")
     watch.add_argument("--open", action="store_true", help="open the preview in a browser")
+    watch.add_argument("--jobs", "-j", type=_jobs, metavar="N",
+                       help="analyse and draw networks in N worker processes (default: one per "
+                            "core)")
     watch.add_argument("--quiet", "-q", action="store_true",
                        help="no progress lines; one line per rebuild only")
     pack = verbs.add_parser("pack", help="write a partner bundle: a zip of the site with "
@@ -62,6 +65,9 @@ def _parser() -> argparse.ArgumentParser:
                       help="write the zip here (default: <study>/bundles/<title>.zip)")
     pack.add_argument("--keep-labels", action="store_true",
                       help="let the network maps name their largest nodes (by code)")
+    pack.add_argument("--jobs", "-j", type=_jobs, metavar="N",
+                      help="analyse and draw networks in N worker processes (default: one per "
+                           "core)")
     pack.add_argument("--quiet", "-q", action="store_true", help="no progress lines")
     return parser
 
@@ -130,18 +136,19 @@ def _check(args: argparse.Namespace) -> int:
 
 
 def _watch(args: argparse.Namespace) -> int:
+    from .schedule import Workers
     from .watch import watch_study
 
     return watch_study(args.project, host=args.host, port=args.port, open_browser=args.open,
-                       quiet=args.quiet)
+                       quiet=args.quiet, workers=Workers(jobs=args.jobs))
 
 
 def _pack(args: argparse.Namespace) -> int:
-    from .build import Progress
+    from .build import Progress, Workers
     from .pack import SHORT_CAUTION, pack_study
 
     result = pack_study(args.project, out=args.out, keep_labels=args.keep_labels,
-                        progress=Progress(quiet=args.quiet))
+                        progress=Progress(quiet=args.quiet), workers=Workers(jobs=args.jobs))
     if result.new_key:
         print(f"made the study's key {result.key_file} (keep it, never share it: the same key "
               "gives the same codes in every bundle)")

@@ -195,6 +195,21 @@ def test_clicking_a_column_heading_sorts_the_node_table(site: Path, tab: _Tab) -
     assert ids == sorted(ids, key=str.casefold) and len(ids) > 1
 
 
+def test_the_networks_on_the_front_page_sort_by_a_statistic(site: Path, tab: _Tab) -> None:
+    tab.open(site / "index.html")
+    headers = tab.page.locator("#glance-table thead th")
+    titles = [headers.nth(i).inner_text().strip() for i in range(headers.count())]
+    density = titles.index("Density")
+    values = f"""() => Array.from(document.querySelectorAll("#glance-table tbody tr"))
+                 .map((row) => Number(row.cells[{density}].getAttribute("data-value")))"""
+    before = tab.page.evaluate(values)
+    headers.nth(density).locator("button.sort").click()
+    assert tab.page.evaluate(values) == sorted(before, reverse=True)
+    assert "Sorted by Density, descending." in tab.page.locator(
+        '[data-table-tools="glance-table"] .status').inner_text()
+    assert tab.violations() == []
+
+
 @pytest.mark.parametrize("network", ["advice", "coworking"])
 def test_every_figure_loads(site: Path, tab: _Tab, network: str) -> None:
     tab.open(site / "networks" / network / "index.html")

@@ -265,8 +265,8 @@ def test_datapackage_validates_with_frictionless_against_the_csvs(packed, tmp_pa
         archive.extractall(tmp_path)
     report = frictionless.validate(str(tmp_path / "files/datapackage.json"))
     assert report.valid, report.flatten(["rowNumber", "fieldName", "message"])
-    assert report.stats["tasks"] == 6  # nodes, edges, statistics, communities, mixing of clinic
-    #                                    and of role
+    assert report.stats["tasks"] == 7  # nodes, edges, statistics, communities, mixing of clinic
+    #                                    and of role, and the study's table of statistics
     package = json.loads((tmp_path / "files/datapackage.json").read_text())
     assert all(r["schema"]["missingValues"] == [""] for r in package["resources"])
     # The check can fail: a word in a number column is reported.

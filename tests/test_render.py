@@ -172,7 +172,8 @@ def _rows(html: str, table_class: str) -> list[str]:
 
 
 def _downloads(items: list[NetworkPageInput]) -> set[str]:
-    paths = {"files/datapackage.json", "files/all-data.zip", "manifest.json"}
+    paths = {"files/datapackage.json", "files/all-data.zip", "files/study-statistics.csv",
+             "manifest.json"}
     for item in items:
         paths |= set(network_files(item.analysis))  # what the publish stage writes
         paths |= {f"networks/{item.id}/figures/{f.name}.{ext}" for f in item.figures
@@ -840,3 +841,20 @@ def test_untested_networks_say_so_on_the_page_and_the_methods_page(built):
     assert "Not tested against chance: [significance] null_samples is 0." in section
     assert "significance.csv" not in site["downloads.html"].decode()
     assert "Not tested against chance" in site["methods.html"].decode()
+
+
+def test_page_links_are_the_relative_paths_the_standard_library_computes():
+    # posixpath.relpath is the reference; page_href does the same without the file system.
+    import posixpath
+    import random
+
+    from generator.render.site_map import page_href
+
+    parts = ["a", "b", "index.html", "networks", "x", "nodes", "node-1.html"]
+    rng = random.Random(5)
+    for _ in range(5000):
+        target = "/".join(rng.choice(parts) for _ in range(rng.randint(1, 4)))
+        page = "/".join(rng.choice(parts) for _ in range(rng.randint(1, 4)))
+        expected = posixpath.relpath(target, posixpath.dirname(page) or ".")
+        assert page_href(page, target) == expected, (page, target)
+    assert page_href("networks/a/nodes/node-2.html", "index.html#glance") == "../../../index.html#glance"

@@ -190,3 +190,36 @@ def test_an_empty_cluster_key_is_refused_with_its_line(tmp_path: Path) -> None:
     with pytest.raises(ConfigError) as caught:
         load_study(study)
     assert caught.value.key == "build.cluster" and caught.value.line is not None
+
+
+def test_pack_with_two_jobs_gives_the_bundle_of_one_job_byte_for_byte(
+        example: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+        capsys: pytest.CaptureFixture[str]) -> None:
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", "1700000000")  # the same build date in both
+    one, two = tmp_path / "one.zip", tmp_path / "two.zip"
+    assert main(["pack", str(example), "--out", str(one), "--jobs", "1"]) == 0
+    capsys.readouterr()
+    assert main(["pack", str(example), "--out", str(two), "--jobs", "2"]) == 0
+    err = capsys.readouterr().err
+    assert one.read_bytes() == two.read_bytes()
+    # The partner figures (drawn without names) were drawn by the workers, each reported.
+    total = len(load_study(example).networks)
+    assert len(re.findall(r"^draw\s+\S+: \d+ figures", err, re.M)) == total
+
+
+def test_watch_passes_its_jobs_to_every_rebuild(monkeypatch: pytest.MonkeyPatch,
+                                                capsys: pytest.CaptureFixture[str]) -> None:
+    import generator.watch as watch
+
+    seen: list[Workers | None] = []
+
+    def fake_watch(project: str, **kwargs: object) -> int:
+        seen.append(kwargs["workers"])  # type: ignore[arg-type]
+        return 0
+
+    monkeypatch.setattr(watch, "watch_study", fake_watch)
+    assert main(["watch", "somewhere", "--jobs", "3"]) == 0
+    assert main(["watch", "somewhere"]) == 0
+    assert seen == [Workers(jobs=3), Workers(jobs=None)]
+    assert main(["watch", "--jobs", "0"]) == 2
+    assert "'0' is not a number of processes (1 or more)" in capsys.readouterr().err

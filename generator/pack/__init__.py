@@ -20,12 +20,14 @@ import pandas as pd
 from ..analyse import NetworkAnalysis
 from ..build import (
     Progress,
+    Workers,
     build_info_stamp,
     read_notes,
     read_text,
     site_files,
     study_analyses,
     study_relations,
+    workers_for,
 )
 from ..cache import CACHE_DIR, ResultCache, analysis_key
 from ..config import StudyConfig, load_study
@@ -72,8 +74,10 @@ class PackResult:
 
 
 def pack_study(project: Path | str, *, out: Path | None = None, keep_labels: bool = False,
-               progress: Progress | None = None) -> PackResult:
-    """Pack the study's partner bundle to ``out`` (default ``<study>/bundles/<slug>.zip``).
+               progress: Progress | None = None, workers: Workers | None = None) -> PackResult:
+    """Pack the study's partner bundle to ``out`` (default ``<study>/bundles/<slug>.zip``);
+    networks the cache lacks are analysed, and every partner figure drawn, where ``workers``
+    says (as for a build: ``--jobs``, else ``[build] cluster``, else a process per core).
 
     Raises ConfigError, DataError, OutputError or PackError for bad input, and LeakError when
     the finished bundle still holds an original value; then nothing is written."""
@@ -88,16 +92,17 @@ def pack_study(project: Path | str, *, out: Path | None = None, keep_labels: boo
         progress.warn("[sharing] pseudonymize = false: node ids (and labels not dropped) are "
                       "shared as written")
     with hold_study_lock(study.root, on_wait=_report_waiting(progress)):
-        return _pack_holding_lock(study, target, terms, keep_labels, progress)
+        return _pack_holding_lock(study, target, terms, keep_labels, progress,
+                                  workers_for(study, workers))
 
 
 def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep_labels: bool,
-                       progress: Progress) -> PackResult:
+                       progress: Progress, workers: Workers) -> PackResult:
     keys = {net.id: analysis_key(study, net) for net in study.networks}
     notes, summary = read_notes(study)
     cache = ResultCache(study.root / CACHE_DIR, warn=progress.warn)
     cache.begin_build()
-    analyses = study_analyses(study, keys, progress, cache)
+    analyses = study_analyses(study, keys, progress, cache, workers=workers)
     _check_drop(study, analyses)
     key = read_study_key(study.root)
     if key.shared:
@@ -131,7 +136,7 @@ def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep
                  for r in study_relations(study, analyses, progress)]
     site = site_files(protect_study(study, protection), protected, keys, notes=notes,
                       summary=summary, build_info=build_info, progress=progress, cache=None,
-                      partner=partner, relations=relations)
+                      partner=partner, relations=relations, workers=workers)
     grouped = {f"{a.network_id}-nodes": {c for c in a.attributes if c not in facts.numeric}
                for a in protected}
     site[DATAPACKAGE] = partner_datapackage(site[DATAPACKAGE], pseudonymized=sharing.pseudonymize,

@@ -12,6 +12,7 @@ import networkx as nx
 import pandas as pd
 
 from ..analyse import MixingTable, NetworkAnalysis
+from ..analyse.across import StudyTable
 from ..vocabulary import (
     COMMUNITY,
     COMMUNITY_CONFIDENCE,
@@ -27,7 +28,8 @@ from .archive import ZipTime, zip_bytes
 
 __all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "communities_csv", "datapackage_json", "edges_csv",
            "graphml", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
-           "significance_csv", "statistics_csv"]
+           "significance_csv", "statistics_csv", "study_statistics_csv",
+           "study_statistics_resource"]
 
 
 def _csv(frame: pd.DataFrame) -> bytes:
@@ -56,6 +58,28 @@ def edges_csv(analysis: NetworkAnalysis) -> bytes:
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:
     rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
     return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+
+
+def study_statistics_csv(table: StudyTable) -> bytes:
+    """One row per network (its id and title), one column per statistic at full precision;
+    empty where the statistic is not defined for the network or does not apply to it."""
+    rows = [[net, title, *(exact_text(v) for v in values)]
+            for net, title, values in zip(table.networks, table.titles, table.values)]
+    return _csv(pd.DataFrame(rows, columns=["network", "title", *table.statistics]))
+
+
+def study_statistics_resource(table: StudyTable, path: str) -> dict[str, Any]:
+    """The Data Package resource of ``study_statistics_csv``; ``path`` relative to files/."""
+    fields = [{"name": "network", "type": "string", "description": "Network id."},
+              {"name": "title", "type": "string", "description": "Network title."}]
+    fields += [{"name": name, "type": "number",
+                "description": f"Statistic {name} (see methods.html); empty where not defined "
+                               "for the network or not applicable to it."}
+               for name in table.statistics]
+    return {"name": "study-statistics", "path": path, "profile": "tabular-data-resource",
+            "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
+            "title": "Every network's statistics, one row per network",
+            "schema": {"fields": fields, "primaryKey": ["network"]}}
 
 
 def significance_csv(analysis: NetworkAnalysis) -> bytes:

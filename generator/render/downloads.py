@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass
 
+from ..draw.figure import Figure
 from ..vocabulary import (
     COMMUNITY,
     PATH_MEASURES,
@@ -18,7 +19,16 @@ from ..vocabulary.communities import community_columns
 from ..vocabulary.mixing import mixing_csv_names
 from .describe import weight_reading
 from .inputs import NetworkPageInput
-from .site_map import ALL_DATA, DATAPACKAGE, MANIFEST, PageFrame, figure_file, network_file
+from .site_map import (
+    ALL_DATA,
+    DATAPACKAGE,
+    MANIFEST,
+    STUDY_STATISTICS,
+    PageFrame,
+    figure_file,
+    network_file,
+    study_figure,
+)
 
 __all__ = ["ColumnInfo", "DownloadFile", "DownloadsPage", "FigureDownload", "NetworkDownloads",
            "downloads_context", "network_downloads", "node_columns_described"]
@@ -170,16 +180,34 @@ class DownloadsPage:
 
 
 def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
-                      node_files: dict[str, str], sizes: Mapping[str, int] | None = None
-                      ) -> DownloadsPage:
+                      node_files: dict[str, str], sizes: Mapping[str, int] | None = None,
+                      spread: Figure | None = None) -> DownloadsPage:
     """``node_files`` maps a network id to its node list as the user wrote the path; ``sizes``
-    a file's path to its size in bytes (the manifest's own size is not known yet)."""
+    a file's path to its size in bytes (the manifest's own size is not known yet); ``spread``
+    the front page's figure of statistics across networks, when it has one."""
     known = sizes or {}
+    spread_files = []
+    if spread is not None:
+        for ext, kind in (("svg", "SVG"), ("png", "PNG")):
+            path = study_figure(spread.name, ext)
+            spread_files.append(DownloadFile(path, frame.href(path), f"{spread.title} ({kind}): "
+                                             "the front page's figure.", size=_size(known, path)))
     return DownloadsPage(
         page=frame,
         networks=tuple(network_downloads(item, frame, node_files.get(item.id), known)
                        for item in networks),
         site_files=(
+            DownloadFile(STUDY_STATISTICS, frame.href(STUDY_STATISTICS),
+                         "Every network's statistics side by side at full precision, one row per "
+                         "network: the table on the front page, with every statistic.", (
+                             ColumnInfo("network", "the network's id"),
+                             ColumnInfo("title", "the network's title"),
+                             ColumnInfo("one column per statistic", "named as in each network's "
+                                        "statistics.csv and defined on the Methods page; empty "
+                                        "where the statistic is not defined for the network or "
+                                        "does not apply to it"),
+                         ), size=_size(known, STUDY_STATISTICS)),
+            *spread_files,
             DownloadFile(ALL_DATA, frame.href(ALL_DATA),
                          "Every table (CSV) and GraphML file above with the Data Package "
                          "descriptor, in one zip laid out as the files/ folder is. The same "

@@ -4,6 +4,7 @@ percentile among all nodes, its community, and the same node in the study's othe
 from __future__ import annotations
 
 import math
+import posixpath
 from dataclasses import dataclass
 
 import numpy as np
@@ -100,26 +101,33 @@ def _ranks(values: pd.Series) -> tuple[list[str], list[str]]:
     return ranks, percentiles
 
 
-def _tie_groups(item: NetworkPageInput, position: int, href_of: list[str], labels: list[str]
-                ) -> tuple[TieGroup, ...]:
+def _neighbours(item: NetworkPageInput) -> tuple[list[list[tuple[int, object]]],
+                                                  list[list[tuple[int, object]]]]:
+    """Per node, in node order: its ties out and its ties in, as (other node, weight) in edge
+    order; an undirected network lists each tie at both ends, a self-tie once."""
     analysis = item.analysis
-    node = analysis.nodes.index[position]
     index = {n: i for i, n in enumerate(analysis.nodes.index)}
     edges = analysis.edges
     weights = list(edges["weight"]) if analysis.weighted else [None] * len(edges)
-    out_rows, in_rows = [], []
+    out_rows: list[list[tuple[int, object]]] = [[] for _ in range(len(index))]
+    in_rows: list[list[tuple[int, object]]] = [[] for _ in range(len(index))]
     for s, t, w in zip(edges["source"], edges["target"], weights):
-        if s == node:
-            out_rows.append((index[t], w))
-        if t == node and (analysis.directed or s != node):
-            in_rows.append((index[s], w))
+        out_rows[index[s]].append((index[t], w))
+        if analysis.directed or s != t:
+            in_rows[index[t]].append((index[s], w))
+    return out_rows, in_rows
 
+
+def _tie_groups(directed: bool, out_rows: list[tuple[int, object]],
+                in_rows: list[tuple[int, object]], href_of: list[str], labels: list[str]
+                ) -> tuple[TieGroup, ...]:
     def rows(found: list[tuple[int, object]]) -> tuple[TieRow, ...]:
-        found.sort(key=lambda r: (-(float(r[1]) if r[1] is not None else 0.0), labels[r[0]]))  # type: ignore[arg-type]
+        found = sorted(found, key=lambda r: (-(float(r[1]) if r[1] is not None else 0.0),  # type: ignore[arg-type]
+                                             labels[r[0]]))
         return tuple(TieRow(labels[v], href_of[v], "" if w is None else number(w))
                      for v, w in found)
 
-    if analysis.directed:
+    if directed:
         return (TieGroup("Ties out", "From this node to each node listed.", rows(out_rows)),
                 TieGroup("Ties in", "From each node listed to this node.", rows(in_rows)))
     return (TieGroup("Ties", "The nodes this node is tied to.", rows(out_rows + in_rows)),)
@@ -141,9 +149,17 @@ def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: lis
     for other, views in others:
         positions = {str(node): i for i, node in enumerate(other.analysis.nodes.index)}
         where_else.append((other, views, positions))
+    out_rows, in_rows = _neighbours(item)
+    shown = {m: [number(v) for v in analysis.measures[m]] for m in measures}
+    titles = {m: measure_title(m) for m in measures}
+    attributes = {a: [value_text(v) for v in nodes[a]] for a in analysis.attributes}
+    communities = [str(int(c)) for c in analysis.measures[COMMUNITY]]
+    # Every node's page lies in one folder, so a link to a node's page reads the same from each.
+    folders = {posixpath.dirname(frame.path) for frame in frames}
+    assert len(folders) <= 1, "node pages of one network share one folder"
+    href_of = [frames[0].href(node_view(item.id, v)) for v in range(n)] if frames else []
     pages = []
     for position, frame in enumerate(frames):
-        href_of = [frame.href(node_view(item.id, v)) for v in range(n)]
         elsewhere = []
         for other, views, positions in where_else:
             at = positions.get(str(nodes.index[position]))
@@ -151,8 +167,8 @@ def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: lis
                 target = (node_view(other.id, at) if views
                           else f"{nodes_page(other.id)}#{node_anchor(at)}")
                 elsewhere.append(Elsewhere(other.title, frame.href(target)))
-        rows = tuple(MeasureRow(measure_title(m), number(analysis.measures[m].iloc[position]),
-                                ranked[m][0][position], ranked[m][1][position]) for m in measures)
+        rows = tuple(MeasureRow(titles[m], shown[m][position], ranked[m][0][position],
+                                ranked[m][1][position]) for m in measures)
         figure = ego[position]
         caption = (f"{labels[position]} in the middle, the "
                    f"{count_of(figure.alters, 'node')} it is tied to around it, and the ties "
@@ -164,10 +180,10 @@ def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: lis
             page=frame, name=labels[position], node_id=str(nodes.index[position]),
             network_title=item.title, network_href=frame.href(network_page(item.id)),
             table_href=frame.href(f"{nodes_page(item.id)}#{node_anchor(position)}"),
-            attributes=tuple((a, value_text(nodes.iloc[position][a]))
-                             for a in analysis.attributes),
-            community=str(int(analysis.measures[COMMUNITY].iloc[position])),
-            measures=rows, ties=_tie_groups(item, position, href_of, labels),
+            attributes=tuple((a, attributes[a][position]) for a in analysis.attributes),
+            community=communities[position],
+            measures=rows, ties=_tie_groups(analysis.directed, out_rows[position],
+                                            in_rows[position], href_of, labels),
             elsewhere=tuple(elsewhere), ego=figure,
             ego_hrefs=tuple(href_of[node.position] for node in figure.nodes),
             ego_caption=caption, weighted=analysis.weighted,

@@ -7,7 +7,9 @@ from dataclasses import dataclass
 from markupsafe import Markup
 
 from ..analyse import NetworkAnalysis
-from ..vocabulary import count, node_name, number
+from ..analyse.across import StudyTable
+from ..draw.figure import Figure
+from ..vocabulary import exact_text, node_name, number, statistic_title
 from ..vocabulary.findings import (
     bridge_finding,
     community_finding,
@@ -16,11 +18,20 @@ from ..vocabulary.findings import (
     within_group_finding,
 )
 from .describe import network_kind
+from .figures import FigureView, figure_view
 from .inputs import NetworkPageInput
-from .site_map import PageFrame, figure_file, network_page, nodes_page
+from .site_map import (
+    STUDY_STATISTICS,
+    PageFrame,
+    figure_file,
+    network_page,
+    nodes_page,
+    study_figure,
+)
 
-__all__ = ["CAUTIONS", "GlanceRow", "NetworkCard", "OverviewPage", "glance_rows", "key_findings",
-           "network_cards", "overview_context"]
+__all__ = ["CAUTIONS", "GLANCE_STATISTICS", "GlanceCell", "GlanceRow", "NetworkCard", "OverviewPage",
+           "StudyOverview", "glance_columns", "glance_rows", "key_findings", "network_cards",
+           "overview_context"]
 
 MAP_FIGURE = "map"  # the static map each network page shows; the front page shows it small
 MAX_FINDINGS = 5
@@ -39,33 +50,60 @@ CAUTIONS: tuple[str, ...] = (
 )
 
 
+# The statistics the front page's table gives for every network, when a network has them;
+# files/study-statistics.csv has them all (attribute statistics too).
+GLANCE_STATISTICS = ("nodes", "edges", "density", "reciprocity", "transitivity",
+                     "average_clustering", "components", "largest_component_share", "diameter",
+                     "average_path_length", "degree_assortativity", "modularity", "communities",
+                     "degree_centralization", "betweenness_centralization")
+
+
+@dataclass(frozen=True)
+class StudyOverview:
+    """What the front page shows of the study as a whole: every network's statistics, and how
+    the main ones spread when there are many networks."""
+
+    table: StudyTable
+    spread: Figure | None = None
+
+
+@dataclass(frozen=True)
+class GlanceCell:
+    text: str  # as read: rounded, a dash where not defined
+    value: str  # the exact value the table sorts by; empty where not defined
+
+
 @dataclass(frozen=True)
 class GlanceRow:
     title: str
     href: str
     nodes_href: str
-    nodes: str
-    ties: str
     kind: str
-    density: str
-    communities: str
+    cells: tuple[GlanceCell, ...]  # one per column of OverviewPage.columns
 
 
-def glance_rows(frame: PageFrame, networks: list[NetworkPageInput]) -> tuple[GlanceRow, ...]:
+def glance_columns(table: StudyTable) -> tuple[str, ...]:
+    """The statistics of GLANCE_STATISTICS that at least one network has."""
+    return tuple(name for name in GLANCE_STATISTICS if name in table.statistics
+                 and any(v is not None for v in table.column(name)))
+
+
+def glance_rows(frame: PageFrame, networks: list[NetworkPageInput], table: StudyTable,
+                columns: tuple[str, ...]) -> tuple[GlanceRow, ...]:
+    at = {net: i for i, net in enumerate(table.networks)}
     rows = []
     for item in networks:
-        analysis = item.analysis
-        nodes, ties = analysis.statistic("nodes"), analysis.statistic("edges")
-        density = analysis.statistic("density")
+        values = table.values[at[item.id]]
+        cells = []
+        for name in columns:
+            value = values[table.statistics.index(name)]
+            cells.append(GlanceCell(number(value), exact_text(value)))
         rows.append(GlanceRow(
             title=item.title,
             href=frame.href(network_page(item.id)),
             nodes_href=frame.href(nodes_page(item.id)),
-            nodes=count(len(analysis.nodes) if nodes is None else int(nodes)),
-            ties=count(len(analysis.edges) if ties is None else int(ties)),
-            kind=network_kind(analysis),
-            density="not defined" if density is None else number(density),
-            communities=count(analysis.communities.count),
+            kind=network_kind(item.analysis),
+            cells=tuple(cells),
         ))
     return tuple(rows)
 
@@ -143,13 +181,25 @@ class OverviewPage:
 
     page: PageFrame
     summary: Markup | None
+    columns: tuple[str, ...]  # the statistics of the glance table, by title
     networks: tuple[GlanceRow, ...]
+    spread: FigureView | None
+    study_statistics: str  # href of files/study-statistics.csv
     cards: tuple[NetworkCard, ...]
     cautions: tuple[str, ...]
     built: str
 
 
-def overview_context(frame: PageFrame, networks: list[NetworkPageInput], *,
+def overview_context(frame: PageFrame, networks: list[NetworkPageInput], study: StudyOverview, *,
                      summary: Markup | None, built: str) -> OverviewPage:
-    return OverviewPage(page=frame, summary=summary, networks=glance_rows(frame, networks),
+    columns = glance_columns(study.table)
+    spread = None
+    if study.spread is not None:
+        name = study.spread.name
+        spread = figure_view(frame, study.spread, study_figure(name, "svg"),
+                             study_figure(name, "png"))
+    return OverviewPage(page=frame, summary=summary,
+                        columns=tuple(statistic_title(name) for name in columns),
+                        networks=glance_rows(frame, networks, study.table, columns),
+                        spread=spread, study_statistics=frame.href(STUDY_STATISTICS),
                         cards=network_cards(frame, networks), cautions=CAUTIONS, built=built)

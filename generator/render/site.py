@@ -9,6 +9,7 @@ from dataclasses import dataclass, field, replace
 
 from markupsafe import Markup
 
+from ..analyse.across import study_table
 from ..config import StudyConfig
 from ..errors import Finding
 from .checks import checks_context
@@ -22,7 +23,7 @@ from .network_page import network_context
 from .node_view import node_view_contexts
 from .nodes_page import nodes_context
 from .notes import RenderedNote, render_markdown
-from .overview import overview_context
+from .overview import StudyOverview, overview_context
 from .relations_page import RelationsInput, relations_context, relations_downloads
 from .search import SEARCH_INDEX, search_entries, search_index
 from .site_map import (
@@ -138,7 +139,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                 sizes: Mapping[str, int] | None = None,
                 series: Sequence[SeriesInput] = (),
                 two_mode: Sequence[TwoModeInput] = (),
-                relations: Sequence[RelationsInput] = ()) -> dict[str, bytes]:
+                relations: Sequence[RelationsInput] = (),
+                overview: StudyOverview | None = None) -> dict[str, bytes]:
     """Every page and static file of the site as {relative posix path: bytes}.
 
     ``notes`` maps a note's stem to its markdown; ``summary`` is the front page's markdown;
@@ -155,7 +157,8 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     are the two-mode networks: each gets its page and its sections of the
     methods and downloads pages (their projections are among ``networks``). ``relations``
     are the comparisons of networks on the same nodes: a page each under compare/, and their
-    sections of the methods and downloads pages.
+    sections of the methods and downloads pages. ``overview`` is the study-wide table and spread
+    figure of the front page (built from ``networks`` when not given).
     Raises ConfigError (key ``site.theme``) for an unknown theme or a broken template.
     """
     theme = load_theme(study)
@@ -202,9 +205,11 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     every_network = [reuse.networks.get(item.id, "") for item in networks] if reuse else []
 
     summary_html = written.summary.html if written.summary is not None else None
+    if overview is None:
+        overview = StudyOverview(study_table([item.analysis for item in networks]))
     pages.append((INDEX, "index.html", overview_context(
-        site.frame(INDEX, study.title), networks, summary=summary_html,
-        built=build_info.get("built", ""))))
+        site.frame(INDEX, study.title, scripts=(TABLE_SCRIPT,)), networks, overview,
+        summary=summary_html, built=build_info.get("built", ""))))
 
     for item in networks:
         own = reuse.networks.get(item.id, "") if reuse else ""
@@ -257,7 +262,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             relations_shown):
         frame = site.frame(DOWNLOADS, "Downloads")
         pages.append((DOWNLOADS, "downloads.html", replace(
-            downloads_context(frame, networks, node_files, sizes),
+            downloads_context(frame, networks, node_files, sizes, overview.spread),
             two_mode=tuple(two_mode_downloads(two, frame, sizes or {}) for two in two_mode),
             relations=tuple(relations_downloads(relation, frame, sizes or {})
                             for relation in relations))))

@@ -11,7 +11,7 @@ __all__ = [
     "EXPLORE_SCRIPT", "PageFrame", "SiteMap", "communities_page", "compare_figure", "compare_page",
     "explorer_file", "figure_file", "network_file",
     "network_page", "node_view", "nodes_page", "note_page", "page_href", "relations_file",
-    "series_file",
+    "series_file", "STUDY_STATISTICS", "study_figure",
 ]
 
 INDEX = "index.html"
@@ -21,8 +21,10 @@ DOWNLOADS = "downloads.html"
 DATAPACKAGE = "files/datapackage.json"
 ALL_DATA = "files/all-data.zip"  # every table, GraphML file and the descriptor, in one zip
 MANIFEST = "manifest.json"
+STUDY_STATISTICS = "files/study-statistics.csv"  # every network's statistics, one row each
 SHARING = "sharing.html"  # only in a partner copy: its terms and what was protected
 EXPLORE_SCRIPT = "static/explore.js"  # the theme's explorable map
+NAV_NETWORKS = 12  # up to this many networks each have a link in every page's navigation
 
 
 def compare_page(series: str) -> str:
@@ -31,6 +33,11 @@ def compare_page(series: str) -> str:
 
 def compare_figure(series: str, name: str, ext: str) -> str:
     return f"compare/{series}/{name}.{ext}"
+
+
+def study_figure(name: str, ext: str) -> str:
+    """A figure of the whole study (the front page's), not of one network."""
+    return f"figures/{name}.{ext}"
 
 
 def series_file(series: str, name: str) -> str:
@@ -79,10 +86,22 @@ def figure_file(network_id: str, figure: str, extension: str) -> str:
     return f"networks/{network_id}/figures/{figure}.{extension}"
 
 
+def _relative(target: str, folder: str) -> str:
+    """``posixpath.relpath(target, folder)`` for paths inside the site (relative, no ".."),
+    without asking the file system for the working folder: pages make many links."""
+    to = [part for part in target.split("/") if part not in ("", ".")]
+    start = [part for part in folder.split("/") if part not in ("", ".")]
+    common = 0
+    while common < min(len(to), len(start)) and to[common] == start[common]:
+        common += 1
+    parts = [".."] * (len(start) - common) + to[common:]
+    return "/".join(parts) if parts else "."
+
+
 def page_href(from_path: str, to_path: str) -> str:
     """A relative link from one site file to another (works from file:// and any sub-path)."""
     target, _, fragment = to_path.partition("#")
-    relative = posixpath.relpath(target, posixpath.dirname(from_path) or ".")
+    relative = _relative(target, posixpath.dirname(from_path))
     return quote(relative, safe="/") + (f"#{quote(fragment, safe='')}" if fragment else "")
 
 
@@ -128,6 +147,7 @@ class SiteMap:
         self.study_title = study_title
         self.two_mode = two_mode or []  # (id, title) of two-mode networks, listed first
         self.networks = networks  # (id, title) in study order
+        self._one_mode = frozenset(net_id for net_id, _ in networks)
         self.series = series or []  # (series, title) of every series with two or more waves
         self.relations = relations or []  # (id, title) of every [[relations]] table
         self.notes = notes  # (stem, title), sorted by stem
@@ -143,8 +163,12 @@ class SiteMap:
             return Link(label, page_href(path, target), current)
 
         nav = [link("Overview", INDEX)]
-        nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.two_mode]
-        nav += [link(net_title, network_page(net_id)) for net_id, net_title in self.networks]
+        pages = [*self.two_mode, *self.networks]
+        if len(pages) <= NAV_NETWORKS:
+            nav += [link(net_title, network_page(net_id)) for net_id, net_title in pages]
+        else:  # a study of many groups: the front page's table lists and sorts them
+            nav.append(Link(f"All {len(pages):,} networks", page_href(path, INDEX + "#glance"),
+                            "true" if path.startswith("networks/") else None))
         nav += [link(series_title, compare_page(name)) for name, series_title in self.series]
         nav += [link(title, compare_page(rel_id)) for rel_id, title in self.relations]
         nav += [link("Methods", METHODS), link("Data checks", CHECKS), link("Downloads", DOWNLOADS)]
@@ -152,7 +176,8 @@ class SiteMap:
             nav.append(link("Sharing", SHARING))
         notes = tuple(link(note_title, note_page(stem)) for stem, note_title in self.notes)
         subnav: tuple[Link, ...] = ()
-        for net_id, _ in self.networks:
+        net_id = path.split("/")[1] if path.startswith("networks/") else ""
+        if net_id in self._one_mode:
             if path in (network_page(net_id), nodes_page(net_id), communities_page(net_id)):
                 subnav = (link("Results", network_page(net_id)),
                           link("Every node", nodes_page(net_id)),

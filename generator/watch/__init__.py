@@ -13,7 +13,7 @@ import webbrowser
 from pathlib import Path
 from typing import TextIO
 
-from ..build import Rebuilder
+from ..build import Rebuilder, Workers
 from ..config import DEFAULT_OUTPUT, STUDY_FILE, load_study
 from ..errors import ConfigError
 from ..publish.site import MARKER
@@ -29,12 +29,13 @@ SYNC_SECONDS = 0.5  # how often to look for new subfolders, or a deleted study f
 
 def watch_study(project: Path | str, *, host: str = DEFAULT_HOST, port: int = DEFAULT_PORT,
                 open_browser: bool = False, quiet: bool = False,
-                out: TextIO | None = None) -> int:
+                out: TextIO | None = None, workers: Workers | None = None) -> int:
     """Serve the study's site on ``host``:``port`` and rebuild it on every change until Ctrl-C;
     returns 0 then.
 
     Raises ``ConfigError`` if ``project`` holds no study.toml, and ``ServeError`` if the port
-    cannot be had; any failure of a build after that is shown in the preview instead."""
+    cannot be had; any failure of a build after that is shown in the preview instead.
+    ``workers`` says where networks are analysed and drawn, as for a build."""
     out = out if out is not None else sys.stdout
     root = Path(project).resolve()
     output = _output_folder(root)
@@ -50,7 +51,7 @@ def watch_study(project: Path | str, *, host: str = DEFAULT_HOST, port: int = DE
     changes = Debouncer()
     watcher = StudyWatcher(root, output, changes.add, warn=lambda message: print(
         f"warning  {message}", file=sys.stderr, flush=True))
-    rebuilder = Rebuilder(root)
+    rebuilder = Rebuilder(root, workers=workers)
     try:
         watcher.start()  # before the first build, so a save while it runs is not missed
         _follow(rebuild(rebuilder, root, None, state, quiet=quiet, out=out).site, watcher)
