@@ -122,7 +122,7 @@ def agg_renderer(figure: CanvasFigure) -> RendererBase:
 
 
 def figure_bytes(figure: CanvasFigure, *, crop: bool = False) -> tuple[bytes, bytes]:
-    """The figure as (SVG, PNG) bytes, with no date or software stamp, then release it.
+    """The figure as (SVG, PNG) bytes, with no date or software stamp.
 
     ``crop`` trims both files to one box around everything drawn (measured once for both
     formats); charts with a fixed layout skip it, as measuring costs nearly a full draw.
@@ -131,7 +131,8 @@ def figure_bytes(figure: CanvasFigure, *, crop: bool = False) -> tuple[bytes, by
     svg, png = io.BytesIO(), io.BytesIO()
     figure.savefig(svg, format="svg", bbox_inches=box, metadata={"Date": None, "Creator": None})
     figure.savefig(png, format="png", bbox_inches=box, dpi=PNG_DPI, metadata={"Software": None})
-    figure.clear()
+    # No figure.clear(): clearing every axes costs a tenth of the drawing, and a figure on its
+    # own canvas (no pyplot registry) is freed with its last reference anyway.
     return svg.getvalue(), png.getvalue()
 
 
