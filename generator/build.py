@@ -15,9 +15,10 @@ import time
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field, replace
 from pathlib import Path
-from typing import TextIO
+from typing import Any, TextIO
 
 import pandas as pd
+from tqdm import tqdm  # type: ignore[import-untyped]  # tqdm ships no annotations
 
 from . import __version__
 from .analyse import NetworkAnalysis, analyse_network
@@ -106,20 +107,47 @@ class Progress:
         if not self.quiet:
             print(f"{name:<8} {message}", file=self.stream, flush=True)
 
-    def samples(self, network_id: str) -> Callable[[int, int], None]:
-        """Reports null samples done for one network, each quarter of the way."""
+    def counter(self, name: str, label: str, unit: str, *, after: float = 0.0
+                ) -> Callable[[int, int], None]:
+        """Follows a long stage as ``report(done, total)`` calls: on a terminal a progress bar
+        with the count, the rate and the time left (tqdm); otherwise a plain line each quarter
+        of the way, with the time left estimated from the pace so far. Nothing is shown until
+        ``after`` seconds have passed (quick stages stay quiet)."""
+        bar: Any = None
+        started = time.perf_counter()
+
         def report(done: int, total: int) -> None:
+            nonlocal bar
+            if self.quiet or time.perf_counter() - started < after:
+                return
+            if self.stream.isatty():
+                if bar is None:
+                    bar = tqdm(total=total, desc=f"{name:<8} {label}", unit=f" {unit}",
+                               file=self.stream, leave=False, dynamic_ncols=True)
+                bar.update(done - bar.n)
+                if done >= total:
+                    bar.close()
+                    self.step(name, f"{label}: {done}/{total} {unit}")
+                return
             if done == total or done % max(1, total // 4) == 0:
-                self.step("significance", f"{network_id}: {done}/{total} samples")
+                left = ""
+                if 0 < done < total:
+                    seconds = (time.perf_counter() - started) / done * (total - done)
+                    left = f", about {seconds:.0f} s left"
+                self.step(name, f"{label}: {done}/{total} {unit}{left}")
         return report
 
+    def samples(self, network_id: str) -> Callable[[int, int], None]:
+        """Reports null samples done for one network."""
+        return self.counter("significance", network_id, "samples")
+
     def perturbations(self, network_id: str) -> Callable[[int, int], None]:
-        """Reports community reruns on perturbed ties done for one network, each quarter of
-        the way."""
-        def report(done: int, total: int) -> None:
-            if done == total or done % max(1, total // 4) == 0:
-                self.step("stability", f"{network_id}: {done}/{total} perturbed reruns")
-        return report
+        """Reports community reruns on perturbed ties done for one network."""
+        return self.counter("stability", network_id, "perturbed reruns")
+
+    def runs(self, network_id: str) -> Callable[[int, int], None]:
+        """Reports the community runs done for one network."""
+        return self.counter("communities", network_id, "runs", after=2.0)
 
 
 @dataclass
@@ -450,6 +478,7 @@ def _network_work(task: _NetworkTask, progress: Progress | None = None) -> _Netw
                 significance=task.significance,
                 progress=progress.samples(task.network_id) if progress else None,
                 stability_progress=progress.perturbations(task.network_id) if progress else None,
+                runs_progress=progress.runs(task.network_id) if progress else None,
                 null_workers=1 if task.in_worker else None)
         drawn = time.perf_counter()
         figures = draw_network(analysis, task.settings) if task.settings is not None else None

@@ -62,14 +62,14 @@ __all__ = [
 T = TypeVar("T")
 CACHE_DIR = ".netfolio-cache"
 FORMAT = "netfolio-cache"
-FORMAT_VERSION = 5
+FORMAT_VERSION = 6
 # The Cache Directory Tagging Specification's tag: backup tools skip the folder, and clean knows
 # netfolio made it.
 CACHE_TAG = "CACHEDIR.TAG"
 _TAG_TEXT = ("Signature: 8a477f597d28d172789f06886806bc55\n"
              "# This folder holds netfolio's cache of results; netfolio clean removes it.\n")
 # Bumped whenever figures are drawn differently for the same analysis and settings.
-FIGURE_STYLE = 3
+FIGURE_STYLE = 4
 
 
 # ---------------------------------------------------------------------------------------------

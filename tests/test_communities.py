@@ -14,7 +14,7 @@ from conftest import analyse, analyse_graph, edge_study, load_network, undirecte
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from generator.analyse.communities import find_communities, run_seeds
+from generator.analyse.communities import community_ties, find_communities, run_seeds
 
 EXACT = dict(rel=1e-9, abs=1e-12)
 METHODS = ("leiden", "louvain", "label-propagation")
@@ -288,3 +288,35 @@ def test_agreement_uses_no_deprecated_igraph_call():
     with warnings.catch_warnings():
         warnings.simplefilter("error", DeprecationWarning)
         find(two_cliques(4), runs=2)
+
+
+@pytest.mark.parametrize("directed", [False, True])
+def test_community_ties_count_as_the_networkx_quotient_graph_does(directed):
+    # Reference: networkx ``quotient_graph`` (blocks = communities): its edge "weight" is the
+    # number of ties between two blocks and its node "nedges" the ties inside a block.
+    graph = ig.Graph.Erdos_Renyi(n=60, m=240, directed=directed)
+    graph.simplify()
+    membership = [1 + (v * 7) % 5 for v in range(60)]
+    edges = graph.get_edgelist()
+    counted = community_ties(membership, [a for a, _ in edges], [b for _, b in edges],
+                             directed=directed)
+    reference = (nx.DiGraph if directed else nx.Graph)()
+    reference.add_nodes_from(range(60))
+    reference.add_edges_from(edges)
+    blocks = [frozenset(v for v in range(60) if membership[v] == c) for c in range(1, 6)]
+    quotient = nx.quotient_graph(reference, blocks, relabel=True)
+    assert counted.inside == tuple(quotient.nodes[c]["nedges"] for c in range(5))
+    found = dict(zip(counted.pairs, counted.counts))
+    if directed:
+        # networkx ``edge_boundary(G, S, T)`` lists the ties from S to T: one direction
+        expected = {(a, b): len(list(nx.edge_boundary(reference, blocks[a - 1], blocks[b - 1])))
+                    for a in range(1, 6) for b in range(1, 6) if a != b}
+        assert found == {pair: n for pair, n in expected.items() if n}
+        # the quotient graph's weight counts both directions between two blocks
+        for a, b, data in quotient.edges(data=True):
+            assert found.get((a + 1, b + 1), 0) + found.get((b + 1, a + 1), 0) == data["weight"]
+    else:
+        assert found == {(min(a, b) + 1, max(a, b) + 1): data["weight"]
+                         for a, b, data in quotient.edges(data=True)}
+    assert list(counted.pairs) == sorted(counted.pairs)
+    assert sum(counted.inside) + sum(counted.counts) == len(edges)

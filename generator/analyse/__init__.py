@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
+import numpy as np
 import pandas as pd
 
 from ..config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
@@ -15,8 +16,10 @@ from .communities import (
     AttributeComparison,
     CommunityProfile,
     CommunityResult,
+    CommunityTies,
     StabilityResult,
     community_profiles,
+    community_ties,
     compare_with_attribute,
     find_communities,
     perturbed_stability,
@@ -33,6 +36,7 @@ __all__ = [
     "AttributeComparison",
     "CommunityProfile",
     "CommunityResult",
+    "CommunityTies",
     "GroupMixing",
     "MixingTable",
     "NetworkAnalysis",
@@ -87,16 +91,30 @@ class NetworkAnalysis:
     def labels(self) -> list[str]:
         return [str(v) for v in self.nodes["label"]]
 
+    def tie_vertices(self) -> tuple[np.ndarray, np.ndarray]:
+        """Each tie's source and target as positions in node order."""
+        index = pd.Index(self.nodes.index)
+        return (index.get_indexer(self.edges["source"]).astype(np.int64),
+                index.get_indexer(self.edges["target"]).astype(np.int64))
+
+    def community_ties(self) -> CommunityTies:
+        """The ties inside and between the communities found."""
+        sources, targets = self.tie_vertices()
+        return community_ties(self.communities.membership, sources, targets,
+                              directed=self.directed)
+
 
 def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                     measures: MeasuresConfig, seed: int,
                     significance: SignificanceConfig | None = None,
                     progress: Callable[[int, int], None] | None = None,
                     stability_progress: Callable[[int, int], None] | None = None,
+                    runs_progress: Callable[[int, int], None] | None = None,
                     null_workers: int | None = None) -> NetworkAnalysis:
     """Compute every measure, statistic and the community partition of one network, and (when
     ``significance`` asks for null samples) test the statistics against rewired networks;
-    ``progress(done, samples)`` follows those tests, ``stability_progress(done, total)`` the
+    ``progress(done, samples)`` follows those tests, ``runs_progress(done, runs)`` the community
+    runs, ``stability_progress(done, total)`` the
     community reruns on perturbed ties. ``null_workers`` is passed to ``null_model_tests``
     (1: no processes of its own, as when the network is already analysed in a worker)."""
     graph = build_graph(network)
@@ -106,7 +124,7 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
     undirected = undirected_version(graph)
     found = find_communities(undirected, method=communities.method,
                              resolution=communities.resolution, runs=communities.runs, seed=seed,
-                             weighted=weighted)
+                             weighted=weighted, progress=runs_progress)
     stability = perturbed_stability(
         undirected, found.membership, method=communities.method,
         resolution=communities.resolution, runs=communities.runs, seed=seed, weighted=weighted,
@@ -133,7 +151,8 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
         measures=table,
         statistics=tuple(stats),
         communities=found,
-        layout=tuple(network_layout(graph, seed=seed, weighted=weighted)),
+        layout=tuple(network_layout(graph, seed=seed, weighted=weighted,
+                                    membership=found.membership)),
         omitted=node.omitted,
         sampling=node.sampling,
         seed=seed,

@@ -11,6 +11,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 
 import igraph as ig
+import numpy as np
 
 from .seeding import seeded_igraph
 
@@ -20,9 +21,11 @@ __all__ = [
     "AttributeComparison",
     "CommunityProfile",
     "CommunityResult",
+    "CommunityTies",
     "StabilityResult",
     "adjusted_rand_index",
     "community_profiles",
+    "community_ties",
     "compare_with_attribute",
     "find_communities",
     "merge_values",
@@ -104,24 +107,30 @@ def _canonical(membership: list[int]) -> tuple[int, ...]:
 
 
 def _runs(graph: ig.Graph, method: str, resolution: float, runs: int, seed: int,
-          weights: list[float] | None) -> tuple[list[tuple[int, ...]], list[float], int]:
+          weights: list[float] | None, progress: Callable[[int, int], None] | None = None
+          ) -> tuple[list[tuple[int, ...]], list[float], int]:
     """Every run's partition (canonical labels), its score at ``resolution``, and the index of
     the best run (highest score; the earliest among equal ones)."""
-    partitions = [_canonical(_one_run(graph, method, resolution, weights, s))
-                  for s in run_seeds(seed, runs)]
+    partitions = []
+    for done, s in enumerate(run_seeds(seed, runs), start=1):
+        partitions.append(_canonical(_one_run(graph, method, resolution, weights, s)))
+        if progress is not None:
+            progress(done, runs)
     scores = [graph.modularity(list(p), weights=weights, resolution=resolution) for p in partitions]
     best_index = max(range(runs), key=lambda i: (round(scores[i], 12), -i))
     return partitions, scores, best_index
 
 
 def find_communities(undirected: ig.Graph, *, method: str, resolution: float, runs: int, seed: int,
-                     weighted: bool) -> CommunityResult:
+                     weighted: bool, progress: Callable[[int, int], None] | None = None
+                     ) -> CommunityResult:
     """Run ``method`` ``runs`` times with seeds from ``seed`` on the undirected version (with
     strengths) and keep the partition with the highest modularity at ``resolution``.
 
     Agreement between the kept partition and the other runs (adjusted Rand index, Hubert & Arabie
     1985; normalised mutual information, Danon et al. 2005) shows how stable the result is: near 1,
     every run found much the same communities; well below 1, the split is one of several.
+    ``progress(done, runs)`` follows the runs.
     """
     weights = undirected.es["strength"] if weighted else None
     n = undirected.vcount()
@@ -129,9 +138,11 @@ def find_communities(undirected: ig.Graph, *, method: str, resolution: float, ru
         membership = tuple(range(1, n + 1))
         return CommunityResult(method, resolution, runs, seed, membership, (1,) * n, None, None,
                                None, None, 1, 1.0)
-    partitions, scores, best_index = _runs(undirected, method, resolution, runs, seed, weights)
+    partitions, scores, best_index = _runs(undirected, method, resolution, runs, seed, weights,
+                                           progress)
     best = partitions[best_index]
-    sizes = tuple(best.count(k) for k in range(1, max(best) + 1))
+    counted = Counter(best)
+    sizes = tuple(counted[k] for k in range(1, max(best) + 1))
     ari = [ig.compare_communities(list(best), list(p), method="adjusted_rand") for p in partitions]
     nmi = [ig.compare_communities(list(best), list(p), method="nmi") for p in partitions]
     distinct = len(set(partitions))
@@ -391,6 +402,36 @@ def community_profiles(undirected: ig.Graph, membership: Sequence[int],
             conductance=external[c] / smaller if smaller > 0 else None,
             confidence=summed.get(c, 0.0) / s if confidence else None))
     return tuple(profiles)
+
+
+@dataclass(frozen=True)
+class CommunityTies:
+    """The community graph of a partition: ties inside each community 1..k, and the ties
+    between each pair of communities that has any (``pairs[i]`` holds ``counts[i]`` ties; a
+    directed network counts each direction apart, an undirected one lists a pair once, the
+    lower community first)."""
+
+    inside: tuple[int, ...]
+    pairs: tuple[tuple[int, int], ...]
+    counts: tuple[int, ...]
+
+
+def community_ties(membership: Sequence[int], sources: Sequence[int] | np.ndarray,
+                   targets: Sequence[int] | np.ndarray, *, directed: bool) -> CommunityTies:
+    """Count the ties of vertex pairs (``sources[i]``, ``targets[i]``) by the communities of
+    their ends (``membership[v]`` in 1..k), without a loop per tie."""
+    member = np.asarray(membership, dtype=np.int64)
+    k = int(member.max()) if member.size else 0
+    a = member[np.asarray(sources, dtype=np.int64)] if len(sources) else np.zeros(0, np.int64)
+    b = member[np.asarray(targets, dtype=np.int64)] if len(targets) else np.zeros(0, np.int64)
+    same = a == b
+    inside = np.bincount(a[same], minlength=k + 1)[1:]
+    a, b = a[~same], b[~same]
+    if not directed:
+        a, b = np.minimum(a, b), np.maximum(a, b)
+    codes, counts = np.unique(a * (k + 1) + b, return_counts=True)
+    pairs = tuple((int(code // (k + 1)), int(code % (k + 1))) for code in codes)
+    return CommunityTies(tuple(int(x) for x in inside), pairs, tuple(int(c) for c in counts))
 
 
 @dataclass(frozen=True)

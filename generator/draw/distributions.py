@@ -6,15 +6,19 @@ import math
 
 import numpy as np
 from matplotlib.axes import Axes
-from matplotlib.ticker import MaxNLocator
+from matplotlib.ticker import FuncFormatter, MaxNLocator, NullFormatter
 
 from ..analyse import NetworkAnalysis
 from ..vocabulary import PATH_MEASURES, count_of, node_name, number
 from ..vocabulary import measure as measure_entry
+from .community_map import LARGE_MAP_NODES
 from .figure import Figure
 from .style import BAR_COLOUR, INK, drawing_style, figure_bytes, new_chart, quiet_axes
 
-__all__ = ["draw_centrality", "draw_degree"]
+__all__ = ["CCDF_POINTS", "DEGREE_BARS_UP_TO", "ccdf_points", "draw_centrality", "draw_degree"]
+
+DEGREE_BARS_UP_TO = 100  # the largest degree still drawn as one bar per degree
+CCDF_POINTS = 30  # points of a complementary cumulative distribution, spaced on a log scale
 
 
 def _degree_panel(ax: Axes, values: np.ndarray, measure: str) -> None:
@@ -37,10 +41,46 @@ def _degree_words(values: np.ndarray, measure: str) -> str:
             f"{count_of(int(counts[common]), 'node')})")
 
 
+def ccdf_points(values: np.ndarray, points: int = CCDF_POINTS) -> tuple[np.ndarray, np.ndarray]:
+    """The complementary cumulative distribution at about ``points`` degrees spaced evenly on a
+    log scale from 1 to the largest: each degree k and the share of nodes with at least k
+    (common practice for skewed degrees: Clauset, Shalizi & Newman 2009, "Power-law
+    distributions in empirical data", SIAM Review 51(4), section 2)."""
+    top = int(values.max()) if values.size else 0
+    if top < 1:
+        return np.zeros(0), np.zeros(0)
+    ks = np.unique(np.round(np.logspace(0, math.log10(top), points)).astype(int))
+    ordered = np.sort(values)
+    at_least = (len(ordered) - np.searchsorted(ordered, ks, side="left")) / len(ordered)
+    return ks.astype(float), at_least
+
+
+def _ccdf_panel(ax: Axes, values: np.ndarray, measure: str) -> None:
+    ks, shares = ccdf_points(values)
+    ax.plot(ks, shares, marker="o", markersize=3.5, linewidth=1.2, color=BAR_COLOUR)
+    ax.set_xscale("log")
+    ax.set_yscale("log")
+    for axis in (ax.xaxis, ax.yaxis):  # plain numbers (1, 10, 0.01), not powers of ten
+        axis.set_major_formatter(FuncFormatter(lambda value, _: number(value)))
+        axis.set_minor_formatter(NullFormatter())
+    ax.set_xlabel(f"{measure_entry(measure).plain} (log scale)")
+    quiet_axes(ax, grid="both")
+
+
+def _skewed(analysis: NetworkAnalysis, panels: list[str]) -> bool:
+    """Bars for every degree read well up to DEGREE_BARS_UP_TO degrees and LARGE_MAP_NODES
+    nodes; beyond, the degree distribution is drawn as a complementary cumulative one."""
+    top = max((float(analysis.measures[m].max()) for m in panels), default=0.0)
+    return len(analysis.measures) > LARGE_MAP_NODES or top > DEGREE_BARS_UP_TO
+
+
 def draw_degree(analysis: NetworkAnalysis) -> Figure:
     """Bar chart of how many nodes have each degree; in- and out-degree side by side when the
-    network is directed."""
+    network is directed. A large or skewed network gets the complementary cumulative
+    distribution on log scales instead."""
     panels = ["in_degree", "out_degree"] if analysis.directed else ["degree"]
+    if _skewed(analysis, panels):
+        return _draw_degree_ccdf(analysis, panels)
     n = len(analysis.measures)
     title = f"{analysis.title}: degree distribution"
     with drawing_style():
@@ -60,6 +100,30 @@ def draw_degree(analysis: NetworkAnalysis) -> Figure:
         alt = f"Bar chart of the degree of {count_of(n, 'node')}: {words[0]}{alone}."
         caption = (f"{measure_entry('degree').meaning} Each bar shows how many nodes have that "
                    "many.")
+    return Figure(name="degree", title=title, alt=alt, caption=caption, svg=svg, png=png)
+
+
+def _draw_degree_ccdf(analysis: NetworkAnalysis, panels: list[str]) -> Figure:
+    n = len(analysis.measures)
+    title = f"{analysis.title}: degree distribution"
+    with drawing_style():
+        fig, axes = new_chart(3.6 * len(panels) + 1.6, 2.9, title=title, panels=len(panels),
+                              left=1.2)
+        for ax, measure in zip(axes, panels):
+            _ccdf_panel(ax, np.array(analysis.measures[measure], dtype=float), measure)
+        axes[0].set_ylabel("share of nodes with at least\nthis many (log scale)")
+        svg, png = figure_bytes(fig)
+    words = [_degree_words(np.array(analysis.measures[m], dtype=float), m) for m in panels]
+    isolated = int((np.array(analysis.measures["degree"]) == 0).sum())
+    alone = (f"; {count_of(isolated, 'node')} with no ties at all, counted in the shares but "
+             "not drawn (a log scale has no zero)" if isolated else "")
+    kind = "Two line charts" if analysis.directed else "A line chart"
+    alt = (f"{kind} on log scales of the share of the {count_of(n, 'node')} with at least each "
+           f"number of ties: {'; '.join(words)}{alone}.")
+    meanings = " ".join(measure_entry(m).meaning for m in panels)
+    caption = (f"{meanings} Each point shows the share of nodes with at least that many; both "
+               "scales are logarithmic, so a few nodes with very many ties stay visible next "
+               "to the many with few.")
     return Figure(name="degree", title=title, alt=alt, caption=caption, svg=svg, png=png)
 
 

@@ -138,16 +138,10 @@ def community_explorer_data(analysis: NetworkAnalysis) -> ExplorerData | None:
     low, high = _COMMUNITY_RADII
     largest = max(sizes)
     radii = tuple(round(low + (high - low) * math.sqrt(size / largest), 2) for size in sizes)
-    index = {node: i for i, node in enumerate(analysis.nodes.index)}
-    inside = [0] * k
-    between: dict[tuple[int, int], int] = {}
-    for source, target in zip(analysis.edges["source"], analysis.edges["target"]):
-        a, b = membership[index[source]] - 1, membership[index[target]] - 1
-        if a == b:
-            inside[a] += 1
-            continue
-        pair = (int(a), int(b)) if analysis.directed else (int(min(a, b)), int(max(a, b)))
-        between[pair] = between.get(pair, 0) + 1
+    counted = analysis.community_ties()
+    inside = counted.inside
+    # 0-based communities from here on, as the map's circles are numbered
+    between = {(a - 1, b - 1): n for (a, b), n in zip(counted.pairs, counted.counts)}
     pairs = sorted(between)
     counts = tuple(float(between[pair]) for pair in pairs)
     widths = tie_widths(counts, weighted=True) / _POINTS_PER_VIEW
@@ -156,7 +150,10 @@ def community_explorer_data(analysis: NetworkAnalysis) -> ExplorerData | None:
     member_colours = colour_nodes(analysis, FigureSettings(color_by=COMMUNITY)).colours
     colours = tuple(member_colours[int(np.flatnonzero(membership == c)[0])] for c in range(1, k + 1))
     key = tuple((f"community {c}", colours[c - 1], sizes[c - 1]) for c in range(1, k + 1))
-    outside = [sum(n for pair, n in between.items() if c in pair) for c in range(k)]
+    outside = [0] * k
+    for (a, b), n in between.items():
+        outside[a] += n
+        outside[b] += n
     facts = (("Members", tuple(number(size) for size in sizes)),
              ("Ties inside", tuple(number(n) for n in inside)),
              ("Ties with other communities", tuple(number(n) for n in outside)))

@@ -18,6 +18,7 @@ from matplotlib.lines import Line2D
 
 from ..analyse import NetworkAnalysis, tie_strengths
 from ..vocabulary import count_of, list_in_words, node_name, number
+from .community_map import LARGE_MAP_NODES, draw_community_map
 from .figure import DEFAULT_SETTINGS, Figure, FigureSettings
 from .label_placement import NodeDisc, place_labels
 from .node_encoding import (
@@ -254,7 +255,10 @@ def _caption(analysis: NetworkAnalysis, colours: NodeColours, sizes: NodeSizes) 
 
 def draw_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS,
              colours: NodeColours | None = None) -> Figure:
-    """The network map of ``analysis`` as a Figure named ``map``."""
+    """The network map of ``analysis`` as a Figure named ``map``; above ``LARGE_MAP_NODES``
+    nodes, the map by community (``community_map``)."""
+    if len(analysis.layout) > LARGE_MAP_NODES:
+        return draw_community_map(analysis, settings)
     colours = colours or colour_nodes(analysis, settings)
     sizes = size_nodes(analysis, settings)
     xy = np.array(analysis.layout, dtype=float).reshape(-1, 2)

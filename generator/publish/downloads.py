@@ -25,6 +25,7 @@ from ..vocabulary import (
 from ..vocabulary.communities import community_columns
 from ..vocabulary.mixing import mixing_csv_names
 from .archive import ZipTime, zip_bytes
+from .graphml import graphml_bytes
 
 __all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "communities_csv", "datapackage_json", "edges_csv",
            "graphml", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
@@ -168,6 +169,18 @@ def _plain_value(value: object) -> object | None:
 
 
 def graphml(analysis: NetworkAnalysis) -> bytes:
+    """network.graphml: the nodes with their attributes and measures, the ties with their
+    weights (written column by column; see ``graphml.py``)."""
+    table = node_table(analysis)
+    if table.columns.is_unique:
+        return graphml_bytes(table, analysis.edges, directed=analysis.directed,
+                             title=analysis.title)
+    return networkx_graphml(analysis)
+
+
+def networkx_graphml(analysis: NetworkAnalysis) -> bytes:
+    """network.graphml as networkx writes it (the reference ``graphml_bytes`` is held to, and
+    the writer when two node columns share a name: networkx keeps the last)."""
     graph = nx.DiGraph() if analysis.directed else nx.Graph()
     graph.graph["title"] = analysis.title
     for row in node_table(analysis).to_dict("records"):

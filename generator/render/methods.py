@@ -6,7 +6,10 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 from urllib.parse import quote
 
+from ..analyse import NetworkAnalysis
+from ..analyse.layout import LARGE_LAYOUT_NODES, layout_iterations
 from ..config import EdgeListSource
+from ..draw.community_map import LARGE_MAP_NODES
 from ..vocabulary import (
     LAYOUT_REFERENCES,
     SAMPLING_REFERENCES,
@@ -265,11 +268,7 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
             analysis.significance, directed=analysis.directed, weighted=analysis.weighted,
             method=method_title(analysis.communities.method), runs=analysis.communities.runs,
             resolution=number(analysis.communities.resolution))),
-        layout=(f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
-                f"undirected version{pull}, started from positions drawn with the study seed "
-                f"{analysis.seed} and scaled into a square, so the same data give the same "
-                "picture. Distances in a drawing are not path lengths: read who is tied to whom, "
-                "not how far apart nodes are drawn."),
+        layout=_layout_text(analysis, pull),
         layout_citations=cite.cite(LAYOUT_REFERENCES),
         seed=analysis.seed,
         versions=tuple(analysis.versions.items()),
@@ -277,6 +276,26 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
             analysis, categorical=item.config.categorical, numeric=item.config.numeric,
             isolates=isolates_text(analysis, item.config))),
     )
+
+
+def _layout_text(analysis: NetworkAnalysis, pull: str) -> str:
+    tied = int((analysis.measures["degree"] > 0).sum())
+    iterations = layout_iterations(tied)
+    if tied > LARGE_LAYOUT_NODES:
+        start = (f"in {number(iterations)} iterations (a budget for {number(tied)} nodes with "
+                 "ties, on a grid that lets only nearby nodes repel), started from the layout of "
+                 "the communities' own graph with each member placed at random near its "
+                 f"community, drawn with the study seed {analysis.seed}")
+    else:
+        start = (f"in {number(iterations)} iterations, started from positions drawn with the "
+                 f"study seed {analysis.seed}")
+    large = (f" Above {number(LARGE_MAP_NODES)} nodes the map shows the communities and a "
+             "density image of the whole layout instead of every node."
+             if len(analysis.layout) > LARGE_MAP_NODES else "")
+    return (f"Figures place nodes with the Fruchterman-Reingold force-directed layout on the "
+            f"undirected version{pull}, {start}, and scaled into a square, so the same data "
+            f"give the same picture.{large} Distances in a drawing are not path lengths: read "
+            "who is tied to whom, not how far apart nodes are drawn.")
 
 
 @dataclass(frozen=True)

@@ -1,4 +1,6 @@
-"""The page context of one network's node table: every node, every attribute and measure."""
+"""The page context of one network's node table: every node, every attribute and measure; of a
+network above ``NODE_TABLE_ROWS`` nodes, the ``NODE_TABLE_ROWS`` nodes highest on the map's size
+measure (nodes.csv keeps them all)."""
 
 from __future__ import annotations
 
@@ -6,14 +8,18 @@ from dataclasses import dataclass
 
 import pandas as pd
 
-from ..vocabulary import DIGITS, node_anchor, number, sort_key, value_text
+from ..draw.figure import FigureSettings
+from ..draw.node_encoding import size_measure
+from ..vocabulary import DIGITS, measure, node_anchor, number, sort_key, value_text
 from .describe import measure_title
 from .inputs import NetworkPageInput
 from .network_page import sampling_sentence
 from .site_map import DOWNLOADS, PageFrame, network_file, network_page, node_view
 
-__all__ = ["Cell", "Column", "NodeRow", "NodesLinks", "NodesPage", "node_columns", "node_rows",
-           "nodes_context"]
+__all__ = ["NODE_TABLE_ROWS", "Cell", "Column", "NodeRow", "NodesLinks", "NodesPage", "node_columns",
+           "node_rows", "nodes_context", "table_positions"]
+
+NODE_TABLE_ROWS = 1000  # the node table page shows at most this many nodes (about 1 MB of HTML)
 
 
 @dataclass(frozen=True)
@@ -58,6 +64,25 @@ def node_columns(item: NetworkPageInput) -> tuple[Column, ...]:
     return tuple(columns)
 
 
+def table_measure(item: NetworkPageInput) -> str:
+    """The measure a shortened node table ranks by: the one that sizes the map's nodes."""
+    return size_measure(item.analysis, FigureSettings(color_by=item.config.color_by,
+                                                      size_by=item.config.size_by))
+
+
+def table_positions(item: NetworkPageInput) -> list[int] | None:
+    """The node positions (node order) the table page shows: None for every node, else the
+    NODE_TABLE_ROWS highest on ``table_measure``, highest first, equal values in node order."""
+    n = len(item.analysis.nodes)
+    if n <= NODE_TABLE_ROWS:
+        return None
+    values = item.analysis.measures[table_measure(item)].reindex(item.analysis.nodes.index)
+    ranked = pd.DataFrame({"value": values.to_numpy(dtype=float), "position": range(n)})
+    ranked = ranked.sort_values(["value", "position"], ascending=[False, True],
+                                na_position="last", kind="stable")
+    return [int(p) for p in ranked["position"].iloc[:NODE_TABLE_ROWS]]
+
+
 def node_rows(item: NetworkPageInput, frame: PageFrame | None = None) -> tuple[NodeRow, ...]:
     table = _table(item)
     views = ([frame.href(node_view(item.id, p)) for p in range(len(table))]
@@ -66,7 +91,10 @@ def node_rows(item: NetworkPageInput, frame: PageFrame | None = None) -> tuple[N
     columns = [table.iloc[:, i].tolist() for i in range(table.shape[1])]
     written = 1 + len(item.analysis.attributes)  # label and attributes, as written in the data
     rows = []
-    for position, node in enumerate(table.index):
+    shown = table_positions(item)
+    ids = list(table.index)
+    for position in (range(len(ids)) if shown is None else shown):
+        node = ids[position]
         values = [column[position] for column in columns]
         rows.append(NodeRow(str(node), tuple(
             Cell(value_text(v) if i < written else number(v), sort_key(v), is_number)
@@ -93,6 +121,16 @@ class NodesPage:
     rows: tuple[NodeRow, ...]
     sampling: str | None
     links: NodesLinks
+    shortened: str | None = None  # when only the top nodes are shown: which, and why
+
+
+def _shortened(item: NetworkPageInput) -> str | None:
+    n = len(item.analysis.nodes)
+    if n <= NODE_TABLE_ROWS:
+        return None
+    return (f"This table shows the {number(NODE_TABLE_ROWS)} of {number(n)} nodes with the "
+            f"highest {measure(table_measure(item)).plain}, highest first, so the page stays "
+            "light; nodes.csv holds every node.")
 
 
 def nodes_context(item: NetworkPageInput, frame: PageFrame) -> NodesPage:
@@ -103,6 +141,7 @@ def nodes_context(item: NetworkPageInput, frame: PageFrame) -> NodesPage:
         columns=node_columns(item),
         rows=node_rows(item, frame),
         sampling=sampling_sentence(item.analysis),
+        shortened=_shortened(item),
         links=NodesLinks(
             network=frame.href(network_page(item.id)),
             nodes_csv=frame.href(network_file(item.id, "nodes.csv")),

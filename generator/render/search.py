@@ -12,6 +12,7 @@ from collections.abc import Iterable
 from ..vocabulary import count_of, node_anchor, node_name, value_text
 from .inputs import NetworkPageInput
 from .network_page import statistic_rows
+from .nodes_page import table_positions
 from .notes import RenderedNote
 from .site_map import CHECKS, DOWNLOADS, INDEX, METHODS, network_page, node_view, nodes_page, note_page
 
@@ -31,10 +32,14 @@ def _node_entries(item: NetworkPageInput, node_pages: bool) -> Iterable[Entry]:
     nodes = analysis.nodes
     attributes = list(analysis.attributes)
     where = f"Node of {item.title}"
-    for position, (node, label) in enumerate(zip(nodes.index, nodes["label"])):
-        if position >= SEARCH_MAX_NODES:
-            return
-        values = [value_text(nodes.iloc[position][a]) for a in attributes]
+    # Without node pages a node is found on the node table, so only the nodes it lists.
+    listed = None if node_pages else table_positions(item)
+    positions = range(min(len(nodes), SEARCH_MAX_NODES)) if listed is None else listed
+    ids, labels = list(nodes.index), list(nodes["label"])
+    columns = [nodes[a].tolist() for a in attributes]
+    for position in positions:
+        node, label = ids[position], labels[position]
+        values = [value_text(column[position]) for column in columns]
         words = " ".join(v for v in values if v and v != "—")
         href = (node_view(item.id, position) if node_pages
                 else f"{nodes_page(item.id)}#{node_anchor(position)}")
