@@ -61,6 +61,7 @@ from .publish.site import recover_interrupted_site
 from .publish.two_mode import two_mode_files, two_mode_resources
 from .render import NetworkPageInput, render_site
 from .render.compare import SeriesInput, series_title
+from .render.methods import scaled_sentence
 from .render.node_view import node_view_limit
 from .render.overview import StudyOverview
 from .render.relations_page import RelationsInput
@@ -536,6 +537,8 @@ def study_results(study: StudyConfig, keys: dict[str, str], progress: Progress,
         if work.analysed:
             cache.store_analysis(keys[task.network_id], work.analysis)
             found = work.analysis
+            if found.scaled:
+                progress.step("analyse", f"{task.network_id}: {scaled_sentence(found)}")
             progress.stage("analyse", f"{task.network_id}: "
                            f"{count_of(len(found.measures.columns), 'measure')}, "
                            f"{count_of(found.communities.count, 'community', 'communities')} "

@@ -97,6 +97,8 @@ def _settings(value: Any, root: Path) -> Any:
         return {f.name: _settings(getattr(value, f.name), root) for f in fields(value)}
     if isinstance(value, (tuple, list)):
         return [_settings(v, root) for v in value]
+    if isinstance(value, frozenset):
+        return sorted(_settings(v, root) for v in value)
     return value
 
 
@@ -194,6 +196,7 @@ def analysis_to_json(analysis: NetworkAnalysis) -> dict[str, Any]:
         "stability": _record(analysis.stability),
         "community_profiles": [_record(c) for c in analysis.community_profiles],
         "attribute_comparisons": [_record(c) for c in analysis.attribute_comparisons],
+        "scaled": list(analysis.scaled),
     }
 
 
@@ -250,6 +253,7 @@ def analysis_from_json(data: dict[str, Any]) -> NetworkAnalysis:
         community_profiles=tuple(CommunityProfile(**c) for c in data["community_profiles"]),
         attribute_comparisons=tuple(_comparison_from_json(c)
                                     for c in data["attribute_comparisons"]),
+        scaled=tuple(str(name) for name in data["scaled"]),
     )
 
 

@@ -145,11 +145,13 @@ class CommunitiesConfig:
     runs: int = DEFAULT_RUNS
     perturbations: int = DEFAULT_PERTURBATIONS  # reruns on the network with ties removed; 0 = off
     perturb_share: float = DEFAULT_PERTURB_SHARE  # share of the ties each rerun removes
+    chosen: frozenset[str] = frozenset()  # the keys study.toml sets (the rest are defaults)
 
 
 @dataclass(frozen=True, kw_only=True)
 class SignificanceConfig:
     null_samples: int = DEFAULT_NULL_SAMPLES
+    chosen: frozenset[str] = frozenset()  # the keys study.toml sets
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -604,9 +606,11 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
             runs=c.positive_int("runs", DEFAULT_RUNS),
             perturbations=perturbations,
             perturb_share=perturb_share,
+            chosen=frozenset(c.data),
         ),
         significance=SignificanceConfig(
-            null_samples=g.positive_int("null_samples", DEFAULT_NULL_SAMPLES, minimum=0)),
+            null_samples=g.positive_int("null_samples", DEFAULT_NULL_SAMPLES, minimum=0),
+            chosen=frozenset(g.data)),
         measures=MeasuresConfig(
             exact_paths_up_to=m.positive_int("exact_paths_up_to", DEFAULT_EXACT_PATHS_UP_TO),
             path_sample_sources=m.positive_int("path_sample_sources", DEFAULT_PATH_SAMPLE_SOURCES),

@@ -11,6 +11,7 @@ import pandas as pd
 from ..config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork
+from .budget import scaled_for_size
 from .communities import (
     NOT_PERTURBED,
     AttributeComparison,
@@ -83,6 +84,7 @@ class NetworkAnalysis:
     stability: StabilityResult = NOT_PERTURBED  # communities rerun on perturbed ties
     community_profiles: tuple[CommunityProfile, ...] = ()  # one per community, 1..k
     attribute_comparisons: tuple[AttributeComparison, ...] = ()  # one per categorical attribute
+    scaled: tuple[str, ...] = ()  # default settings cut down for the network's size (budget.py)
 
     def statistic(self, name: str) -> float | None:
         return next((s.value for s in self.statistics if s.name == name), None)
@@ -117,6 +119,10 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
     runs, ``stability_progress(done, total)`` the
     community reruns on perturbed ties. ``null_workers`` is passed to ``null_model_tests``
     (1: no processes of its own, as when the network is already analysed in a worker)."""
+    communities, scaled_significance, scaled = scaled_for_size(
+        communities, significance or SignificanceConfig(null_samples=0), len(network.edges))
+    if significance is not None:
+        significance = scaled_significance
     graph = build_graph(network)
     weighted = network.weighted
     node = node_measures(graph, weighted=weighted, exact_up_to=measures.exact_paths_up_to,
@@ -170,6 +176,7 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                      for column in categorical_attributes(attributes)),
         listed_nodes=network.listed,
         stability=stability,
+        scaled=scaled,
         community_profiles=community_profiles(undirected, found.membership, stability.confidence),
         attribute_comparisons=compared,
     )

@@ -17,6 +17,7 @@ from ..vocabulary import (
     WEIGHT_REFERENCES,
     Reference,
     community_method,
+    list_in_words,
     measure,
     number,
     significance_method,
@@ -103,6 +104,7 @@ class NetworkMethods:
     versions: tuple[tuple[str, str], ...]
     # Attribute mixing, brokerage and nodes without ties: paragraphs, each with its cites.
     mixing: tuple[tuple[str, tuple[Citation, ...]], ...] = ()
+    scaled: str | None = None  # what was cut down for the network's size
 
 
 class _Citations:
@@ -271,11 +273,35 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
         layout=_layout_text(analysis, pull),
         layout_citations=cite.cite(LAYOUT_REFERENCES),
         seed=analysis.seed,
+        scaled=_capital(scaled_sentence(analysis)),
         versions=tuple(analysis.versions.items()),
         mixing=tuple((text, cite.cite(keys)) for text, keys in mixing_method_text(
             analysis, categorical=item.config.categorical, numeric=item.config.numeric,
             isolates=isolates_text(analysis, item.config))),
     )
+
+
+_SCALED_WORDS = {"runs": ("community runs", "[communities] runs"),
+                 "perturbations": ("perturbed reruns", "[communities] perturbations"),
+                 "null_samples": ("rewired networks", "[significance] null_samples")}
+
+
+def _capital(text: str | None) -> str | None:
+    return None if text is None else text[0].upper() + text[1:]
+
+
+def scaled_sentence(analysis: NetworkAnalysis) -> str | None:
+    """What was cut down for the network's size (``analysis.scaled``), in words, or None."""
+    if not analysis.scaled:
+        return None
+    counts = {"runs": analysis.communities.runs,
+              "perturbations": analysis.stability.perturbations,
+              "null_samples": analysis.significance.samples}
+    parts = [f"{number(counts[name])} {_SCALED_WORDS[name][0]}" for name in analysis.scaled]
+    keys = [_SCALED_WORDS[name][1] for name in analysis.scaled]
+    return (f"with {number(len(analysis.edges))} ties this network got {list_in_words(parts)} "
+            f"instead of the defaults, so the build stays within minutes; set "
+            f"{list_in_words(keys)} in study.toml to choose.")
 
 
 def _layout_text(analysis: NetworkAnalysis, pull: str) -> str:
