@@ -381,15 +381,13 @@ def community_profiles(undirected: ig.Graph, membership: Sequence[int],
         summed[c] += value
     k = max(membership, default=0)
     size = Counter(membership)
-    internal: Counter[int] = Counter()
-    external: Counter[int] = Counter()
-    for u, v in undirected.get_edgelist():
-        cu, cv = membership[u], membership[v]
-        if cu == cv:
-            internal[cu] += 1
-        else:
-            external[cu] += 1
-            external[cv] += 1
+    edges = np.array(undirected.get_edgelist(), dtype=np.int64).reshape(-1, 2)
+    counted = community_ties(membership, edges[:, 0], edges[:, 1], directed=False)
+    internal = dict(zip(range(1, k + 1), counted.inside))
+    external = dict.fromkeys(range(1, k + 1), 0)
+    for (a, b), n in zip(counted.pairs, counted.counts):
+        external[a] += n
+        external[b] += n
     total_volume = 2 * undirected.ecount()
     profiles = []
     for c in range(1, k + 1):
