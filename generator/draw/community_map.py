@@ -57,10 +57,11 @@ def _centres(xy: np.ndarray, membership: np.ndarray, k: int) -> np.ndarray:
     return centres
 
 
-def _density(xy: np.ndarray, sources: np.ndarray, targets: np.ndarray
+def _density(xy: np.ndarray, sources: np.ndarray, targets: np.ndarray, framed: np.ndarray
              ) -> tuple[np.ndarray, tuple[float, float, float, float]]:
-    """Counts of nodes and of points along ties per cell of a DENSITY_BINS square grid."""
-    low, high = xy.min(axis=0), xy.max(axis=0)
+    """Counts of nodes and of points along ties per cell of a DENSITY_BINS square grid around
+    the ``framed`` positions (nodes outside it are not counted)."""
+    low, high = framed.min(axis=0), framed.max(axis=0)
     span = float(max(high[0] - low[0], high[1] - low[1], 1e-9))
     extent = (float(low[0]), float(low[0]) + span, float(low[1]), float(low[1]) + span)
     grid = np.zeros((DENSITY_BINS, DENSITY_BINS))
@@ -78,6 +79,17 @@ def _density(xy: np.ndarray, sources: np.ndarray, targets: np.ndarray
     return grid.T, extent  # rows are y for imshow
 
 
+def _box(points: np.ndarray) -> tuple[float, float, float, float]:
+    """A square around ``points``, centred on them."""
+    if len(points) == 0:
+        return (0.0, 1.0, 0.0, 1.0)
+    low, high = points.min(axis=0), points.max(axis=0)
+    half = max(float(high[0] - low[0]), float(high[1] - low[1]), 1e-6) / 2
+    middle = (low + high) / 2
+    return (float(middle[0]) - half, float(middle[0]) + half, float(middle[1]) - half,
+            float(middle[1]) + half)
+
+
 def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_SETTINGS
                        ) -> Figure:
     """The map of a network above LARGE_MAP_NODES nodes, as the Figure named ``map``."""
@@ -87,7 +99,16 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
     membership = np.asarray(analysis.communities.membership, dtype=np.int64)
     centres = _centres(xy, membership, k)
     colours = _community_colours(analysis)
-    shown = sorted(range(k), key=lambda c: (-sizes[c], c))[:MAP_COMMUNITIES]
+    sources, targets = analysis.tie_vertices()
+    # Nodes without ties sit in a row of their own below the layout and each is a community of
+    # its own; they would shrink the picture of everything else, so they are left out of both
+    # panels (the caption says how many).
+    tied = np.zeros(len(xy), dtype=bool)
+    tied[sources] = True
+    tied[targets] = True
+    with_ties = np.bincount(membership[tied], minlength=k + 1)[1:] if k else np.zeros(0)
+    shown = sorted((c for c in range(k) if with_ties[c] > 0),
+                   key=lambda c: (-sizes[c], c))[:MAP_COMMUNITIES]
     drawn = set(shown)
     counted = analysis.community_ties()
     between: dict[tuple[int, int], int] = {}
@@ -99,9 +120,10 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
     largest = max(sizes) if sizes else 1
     low, high = _AREA
     areas = [low + (high - low) * sizes[c] / largest for c in shown]
-    sources, targets = analysis.tie_vertices()
-    grid, extent = _density(xy, sources, targets) if len(xy) else (np.zeros((1, 1)),
-                                                                   (0.0, 1.0, 0.0, 1.0))
+    framed = xy[tied] if tied.any() else xy
+    grid, extent = _density(xy, sources, targets, framed) if len(xy) else (
+        np.zeros((1, 1)), (0.0, 1.0, 0.0, 1.0))
+    isolated = int(len(xy) - tied.sum())
     title = f"{analysis.title}: network map by community"
     with drawing_style():
         fig = new_figure(2 * _PANEL + 0.5, _PANEL + 0.75)
@@ -109,10 +131,10 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
         left = fig.add_axes((0.15 / width, 0.2 / height, _PANEL / width, _PANEL / height))
         right = fig.add_axes(((_PANEL + 0.35) / width, 0.2 / height, _PANEL / width,
                               _PANEL / height))
-        pad = 0.06 * (extent[1] - extent[0])
-        for ax in (left, right):
-            ax.set_xlim(extent[0] - pad, extent[1] + pad)
-            ax.set_ylim(extent[2] - pad, extent[3] + pad)
+        for ax, box in ((left, _box(centres[shown] if shown else centres)), (right, extent)):
+            pad = 0.08 * max(box[1] - box[0], box[3] - box[2], 1e-9)
+            ax.set_xlim(box[0] - pad, box[1] + pad)
+            ax.set_ylim(box[2] - pad, box[3] + pad)
             ax.set_aspect("equal")
             ax.set_axis_off()
         if links:
@@ -141,7 +163,8 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
                  fontweight="bold", color=INK)
         svg, png = figure_bytes(fig)
     return Figure(name="map", title=title, alt=_alt(analysis, shown, links, between),
-                  caption=_caption(analysis, len(shown), k), svg=svg, png=png)
+                  caption=_caption(analysis, len(shown), int((with_ties > 0).sum()), isolated),
+                  svg=svg, png=png)
 
 
 def _alt(analysis: NetworkAnalysis, shown: list[int], links: list[tuple[int, int]],
@@ -161,13 +184,15 @@ def _alt(analysis: NetworkAnalysis, shown: list[int], links: list[tuple[int, int
             "of where the nodes and ties of the whole layout lie.")
 
 
-def _caption(analysis: NetworkAnalysis, shown: int, k: int) -> str:
+def _caption(analysis: NetworkAnalysis, shown: int, tied_communities: int, isolated: int) -> str:
     n = len(analysis.layout)
-    left_out = (f" Only the {number(shown)} largest of the {number(k)} communities are drawn."
-                if shown < k else "")
+    left_out = (f" Only the {number(shown)} largest of the {number(tied_communities)} "
+                "communities with ties are drawn." if shown < tied_communities else "")
+    alone = (f" The {count_of(isolated, 'node')} without ties are left out of both drawings."
+             if isolated else "")
     return (f"With {number(n)} nodes a map of every node would hide every tie, so each circle "
             f"on the left is one community (the numbers name the {_LABELLED} largest, as on "
             f"the communities page), bigger circles have more members and wider lines more "
             f"ties between two communities.{left_out} On the right, darker cells hold more "
-            "nodes and ties of the layout (a logarithmic scale). Positions in the drawing are "
-            "not path lengths and have no meaning of their own.")
+            f"nodes and ties of the layout (a logarithmic scale).{alone} Positions in the "
+            "drawing are not path lengths and have no meaning of their own.")

@@ -313,7 +313,8 @@ def _community_level(item: NetworkPageInput) -> str:
             f"{number(EXPLORER_MAX_NODES)}, this map shows the "
             f"{count_of(len(item.explorer.ids), 'community', 'communities')} instead: each circle "
             "is a community, its area growing with its members, and each line the ties between "
-            "two communities, wider for more ties. The static map above shows every node.")
+            "two communities, wider for more ties; select a community to see its members' "
+            "numbers.")
 
 
 @dataclass(frozen=True)
