@@ -358,6 +358,10 @@ def test_the_exact_wave_keeps_its_two_columns_and_the_study_table_marks_the_esti
         "statistic", "value", "standard_error", "estimate"]
     assert [f["name"] for f in resources["one-statistics"]["schema"]["fields"]] == [
         "statistic", "value"]
+    waves = {f["name"]: f["description"]
+             for f in resources["series-team-statistics"]["schema"]["fields"]}
+    assert "files/two/statistics.csv says so" in waves["two"]
+    assert "says so" not in waves["one"]
     study_fields = {f["name"] for f in resources["study-statistics"]["schema"]["fields"]}
     assert {"diameter_estimate", "average_path_length_standard_error"} <= study_fields
     import frictionless
@@ -377,3 +381,39 @@ def test_a_study_of_exact_networks_writes_no_estimate_columns(tmp_path):
     page = (site / "networks/two/index.html").read_text("utf-8")
     assert "at least" not in page and "(SE " not in page
     assert "<td>No two connected nodes are more than 4 steps (ties) apart.</td>" in page
+
+
+def test_a_cached_build_of_a_sampled_network_writes_the_same_files(mixed, tmp_path):
+    from generator.build import build_study
+    from generator.cache import analysis_from_json, analysis_to_json
+
+    second = build_study(mixed.parent, output=tmp_path / "second")  # from the cache
+    for analysis in second.networks:
+        again = analysis_from_json(json.loads(json.dumps(analysis_to_json(analysis))))
+        assert again.statistics == analysis.statistics
+    assert [s.estimate for s in second.networks[1].statistics if "path" in s.name] == [SAMPLED]
+    for name in ("files/two/statistics.csv", "files/study-statistics.csv",
+                 "networks/two/index.html", "methods.html"):
+        assert (mixed / name).read_bytes() == (second.output / name).read_bytes(), name
+
+
+def test_estimates_and_bounds_read_as_such():
+    from generator.vocabulary import Reading, reading, statistic_value
+
+    assert statistic_value(12.0, estimate=LOWER_BOUND, standard_error=None) == "at least 12"
+    assert statistic_value(4.2134, estimate=SAMPLED, standard_error=0.03123) == "4.21 (SE 0.031)"
+    assert statistic_value(0.12345, estimate=SAMPLED, standard_error=None) == "about 0.123"
+    assert statistic_value(4.2134, estimate=None, standard_error=None) == "4.21"
+    weighted = Reading(value=2.5, weighted=True, steps=3.25, estimate=SAMPLED,
+                       standard_error=0.0512, steps_standard_error=0.0406)
+    assert reading("average_path_length", weighted) == (
+        "Connected pairs are on average about 2.5 apart in path length (1/weight per tie) "
+        "(estimated from the pairs that start at the sampled source nodes, standard error "
+        "0.051). Counting every tie as one step, they are on average about 3.25 steps apart, "
+        "standard error 0.041.")
+    bound = Reading(value=7.5, weighted=True, steps=9.0, estimate=LOWER_BOUND)
+    assert reading("diameter", bound) == (
+        "Some connected nodes are 7.5 apart in path length (1/weight per tie): the longest "
+        "shortest path found from the sampled source nodes, so the diameter is at least this "
+        "and may be larger. Counting every tie as one step, some are 9 steps apart, so the "
+        "diameter in steps is at least that.")

@@ -33,7 +33,7 @@ __all__ = ["DIAMETER_SWEEPS", "MeanEstimate", "SourcePaths", "diameter_lower_bou
            "mean_path_length", "source_paths", "source_rows"]
 
 DIAMETER_SWEEPS = 4  # searches from far ends after the sampled sources (Magnien et al. 2009)
-_BLOCK = 256  # sources per distance block: bounded memory on large networks
+_CELLS = 2_000_000  # distances held at once (sources x nodes): bounded memory on large networks
 
 
 @dataclass(frozen=True)
@@ -82,8 +82,9 @@ def source_paths(graph: ig.Graph, sources: Sequence[int], lengths: list[float] |
     total: list[float] = []
     longest: list[float] = []
     farthest: list[int] = []
-    for start in range(0, len(sources), _BLOCK):
-        block = list(sources[start:start + _BLOCK])
+    size = max(1, min(256, _CELLS // max(1, graph.vcount())))
+    for start in range(0, len(sources), size):
+        block = list(sources[start:start + size])
         dist = np.array(graph.distances(source=block, weights=lengths, mode="out"), dtype=float)
         dist[np.arange(len(block)), block] = math.inf  # a node does not reach itself
         r, t, lo, f = source_rows(dist, block)

@@ -126,8 +126,8 @@ def _diameter_bound(r: Reading) -> str:
         return f"Some connected nodes are {_steps(r.value)} (ties) apart: {found}."
     text = f"Some connected nodes are {number(r.value)} apart {_length_unit(r)}: {found}."
     if r.steps is not None:
-        text += (f" Counting every tie as one step, some are {_steps(r.steps)} apart (again at "
-                 "least the diameter in steps).")
+        text += (f" Counting every tie as one step, some are {_steps(r.steps)} apart, so the "
+                 "diameter in steps is at least that.")
     return text
 
 
