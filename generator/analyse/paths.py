@@ -8,9 +8,11 @@ sum of their path lengths (y_s) and the longest of them (its eccentricity among 
 
 * Average path length over reachable ordered pairs = sum over all sources of y / sum of x. From
   the sample it is estimated by the ratio estimator R = sum_S y / sum_S x, whose standard error
-  is Cochran's (1977, Sampling Techniques, 3rd ed., ch. 6, eq. 6.9 with the sample mean of x):
+  is the large-sample one of Cochran (1977, Sampling Techniques, 3rd ed., ch. 6; the equation
+  from memory), with the sample mean of x in place of the unknown population mean:
   SE^2 = (1 - k/n) / (k xbar^2) * sum_S (y_s - R x_s)^2 / (k - 1). With every node a source it
-  is the exact value, with SE 0.
+  is the exact value, with SE 0; tests/test_sampled_paths.py checks it against the spread of
+  the estimate over every possible sample of small graphs.
 * Diameter: every distance found is a distance of the network, so the longest one found is a
   lower bound. Beside the sampled sources, a few sweeps (Magnien, Latapy & Habib 2009): the first
   searches out of the far end of the longest sampled path, each next one out of the far end of
