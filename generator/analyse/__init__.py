@@ -146,7 +146,8 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
                      for name in categorical_attributes(attributes))
     stats = network_statistics(graph, weighted=weighted, betweenness=list(table["betweenness"]),
                                attributes=attributes,
-                               modularity=found.modularity, communities=found.count)
+                               modularity=found.modularity, communities=found.count,
+                               paths=node.paths)
     stats += community_statistics(found, stability, compared)
     return NetworkAnalysis(
         network_id=network.id,

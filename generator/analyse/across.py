@@ -11,7 +11,7 @@ import statistics as stats
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from . import NetworkAnalysis
+from . import NetworkAnalysis, PathSampling
 
 __all__ = ["Spread", "StudyTable", "spread", "study_table"]
 
@@ -20,16 +20,31 @@ __all__ = ["Spread", "StudyTable", "spread", "study_table"]
 class StudyTable:
     """``values[i][j]`` is statistic ``statistics[j]`` of network ``networks[i]``; None where the
     statistic is not defined for that network or does not apply to it (reciprocity of an
-    undirected network, the assortativity of an attribute it lacks)."""
+    undirected network, the assortativity of an attribute it lacks). ``estimates[i][j]`` and
+    ``errors[i][j]`` are the value's ``Statistic.estimate`` (None when exact) and standard error,
+    and ``sampling[i]`` the path sampling of network i (None when its paths are exact)."""
 
     networks: tuple[str, ...]  # network ids, in study order
     titles: tuple[str, ...]
     statistics: tuple[str, ...]  # every statistic any network has, in order of first appearance
     values: tuple[tuple[float | None, ...], ...]
+    estimates: tuple[tuple[str | None, ...], ...] = ()
+    errors: tuple[tuple[float | None, ...], ...] = ()
+    sampling: tuple[PathSampling | None, ...] = ()
 
     def column(self, name: str) -> tuple[float | None, ...]:
         j = self.statistics.index(name)
         return tuple(row[j] for row in self.values)
+
+    def estimated(self, name: str) -> bool:
+        """Whether any network's value of ``name`` is an estimate or a bound."""
+        j = self.statistics.index(name)
+        return any(row[j] is not None for row in self.estimates)
+
+    def has_error(self, name: str) -> bool:
+        """Whether any network's value of ``name`` has a standard error."""
+        j = self.statistics.index(name)
+        return any(row[j] is not None for row in self.errors)
 
 
 def study_table(analyses: Sequence[NetworkAnalysis]) -> StudyTable:
@@ -37,13 +52,16 @@ def study_table(analyses: Sequence[NetworkAnalysis]) -> StudyTable:
     for analysis in analyses:
         names.update((s.name, None) for s in analysis.statistics)
     order = tuple(names)
-    values = []
+    values, estimates, errors = [], [], []
     for analysis in analyses:
-        own = {s.name: s.value for s in analysis.statistics}
-        values.append(tuple(own.get(name) for name in order))
+        own = {s.name: s for s in analysis.statistics}
+        values.append(tuple(own[name].value if name in own else None for name in order))
+        estimates.append(tuple(own[name].estimate if name in own else None for name in order))
+        errors.append(tuple(own[name].standard_error if name in own else None for name in order))
     return StudyTable(networks=tuple(a.network_id for a in analyses),
                       titles=tuple(a.title for a in analyses), statistics=order,
-                      values=tuple(values))
+                      values=tuple(values), estimates=tuple(estimates), errors=tuple(errors),
+                      sampling=tuple(a.sampling for a in analyses))
 
 
 @dataclass(frozen=True)

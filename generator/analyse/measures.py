@@ -16,6 +16,7 @@ import pandas as pd
 from ..vocabulary import measure
 from .brokerage import burt_brokerage
 from .graph import undirected_version
+from .paths import SourcePaths, source_rows
 from .seeding import seeded_igraph
 
 __all__ = ["NodeMeasures", "Omission", "PathSampling", "node_measures"]
@@ -46,6 +47,8 @@ class NodeMeasures:
     table: pd.DataFrame
     omitted: dict[str, Omission] = field(default_factory=dict)  # measure -> why it was left out
     sampling: PathSampling | None = None
+    # Shortest paths out of each sampled source (in path lengths), for the path statistics.
+    paths: SourcePaths | None = None
 
 
 def _eigenvector_undefined(graph: ig.Graph) -> Omission | None:
@@ -72,14 +75,20 @@ def _freeman_betweenness(raw: list[float], n: int, directed: bool) -> list[float
 
 
 def _reach_and_distance_sums(graph: ig.Graph, lengths: list[float], sources: list[int] | None
-                             ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                             ) -> tuple[np.ndarray, np.ndarray, np.ndarray, SourcePaths | None]:
     """For each node v: how many (sampled) sources reach v, the sum of their path lengths to v, and
-    the sum of reciprocal lengths. Rows are sources, so directed paths run source -> v."""
+    the sum of reciprocal lengths. Rows are sources, so directed paths run source -> v. With
+    sampled ``sources``, the same rows also give each source's own sums (``SourcePaths``), from
+    which the path statistics are estimated."""
     n = graph.vcount()
     src = list(range(n)) if sources is None else sources
     reach = np.zeros(n)
     total = np.zeros(n)
     inverse = np.zeros(n)
+    reached: list[int] = []
+    sums: list[float] = []
+    longest: list[float] = []
+    farthest: list[int] = []
     for start in range(0, len(src), 256):  # bounded memory on large networks
         block = src[start:start + 256]
         dist = np.array(graph.distances(source=block, weights=lengths, mode="out"), dtype=float)
@@ -90,7 +99,16 @@ def _reach_and_distance_sums(graph: ig.Graph, lengths: list[float], sources: lis
         total += np.where(finite, dist, 0.0).sum(axis=0)
         with np.errstate(divide="ignore"):
             inverse += np.where(finite, 1.0 / dist, 0.0).sum(axis=0)
-    return reach, total, inverse
+        if sources is not None:
+            r, t, lo, f = source_rows(dist, block)
+            reached += r
+            sums += t
+            longest += lo
+            farthest += f
+    paths = None if sources is None else SourcePaths(
+        nodes=n, sources=tuple(sources), reached=tuple(reached), total=tuple(sums),
+        longest=tuple(longest), farthest=tuple(farthest))
+    return reach, total, inverse, paths
 
 
 def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_sources: int,
@@ -128,7 +146,8 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
         raw = [b * n / len(sources) for b in raw]
     columns["betweenness"] = _freeman_betweenness(raw, n, directed)
 
-    reach, total, inverse = _reach_and_distance_sums(graph, lengths or [1.0] * graph.ecount(), sources)
+    reach, total, inverse, paths = _reach_and_distance_sums(graph, lengths or [1.0] * graph.ecount(),
+                                                            sources)
     if sources is not None:
         # Scale each node's sample sums up to all n-1 other nodes; a sampled node is not its own
         # source, so it saw one source fewer.
@@ -166,4 +185,4 @@ def node_measures(graph: ig.Graph, *, weighted: bool, exact_up_to: int, sample_s
             table[name] = table[name].astype("int64")
         else:
             table[name] = table[name].astype(float) + 0.0  # -0.0 from eigensolvers prints as 0.0
-    return NodeMeasures(table=table, omitted=omitted, sampling=sampling)
+    return NodeMeasures(table=table, omitted=omitted, sampling=sampling, paths=paths)

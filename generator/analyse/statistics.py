@@ -12,8 +12,12 @@ import pandas as pd
 
 from .graph import undirected_version
 from .mixing import categorical_attributes, mixing_table
+from .paths import SourcePaths, diameter_lower_bound, mean_path_length, source_paths
 
-__all__ = ["Statistic", "network_statistics"]
+__all__ = ["LOWER_BOUND", "SAMPLED", "Statistic", "network_statistics"]
+
+SAMPLED = "sampled"  # estimated from the sampled sources of the node path measures
+LOWER_BOUND = "lower_bound"  # the largest value found, which the exact value may exceed
 
 
 @dataclass(frozen=True)
@@ -24,6 +28,10 @@ class Statistic:
     the reason by key (the wording lives with the presentation). ``left_out`` counts the nodes an
     attribute statistic skipped for having no value; ``steps`` is a path statistic of a weighted
     network recomputed counting every tie as one step.
+
+    ``estimate`` is None for an exact value, ``SAMPLED`` for one estimated from the sampled
+    sources (with its ``standard_error`` where one is known, and ``steps_standard_error`` for
+    ``steps``), ``LOWER_BOUND`` for a bound found from them (``steps`` then is one too).
     """
 
     name: str
@@ -31,6 +39,9 @@ class Statistic:
     why: str | None = None
     left_out: int = 0
     steps: float | None = None
+    estimate: str | None = None
+    standard_error: float | None = None
+    steps_standard_error: float | None = None
 
 
 def _defined(value: float) -> float | None:
@@ -78,11 +89,37 @@ def _directed_degree_centralization(graph: ig.Graph) -> list[Statistic]:
     return stats
 
 
+def _sampled_path_statistics(graph: ig.Graph, paths: SourcePaths, lengths: list[float] | None
+                             ) -> list[Statistic]:
+    """Diameter (a lower bound) and average path length (a ratio estimate with its standard
+    error) from shortest paths out of the sampled sources; a weighted network (``lengths``
+    given) keeps both counting every tie as one step too, from the same sources."""
+    if not any(paths.reached):
+        return [Statistic("diameter", None, "no_sampled_paths"),
+                Statistic("average_path_length", None, "no_sampled_paths")]
+    mean = mean_path_length(paths)
+    steps_bound = steps_mean = steps_error = None
+    if lengths is not None:
+        steps = source_paths(graph, paths.sources, None)
+        steps_bound = diameter_lower_bound(graph, steps, None)
+        in_steps = mean_path_length(steps)
+        steps_mean, steps_error = in_steps.value, in_steps.standard_error
+    return [Statistic("diameter", diameter_lower_bound(graph, paths, lengths), steps=steps_bound,
+                      estimate=LOWER_BOUND),
+            Statistic("average_path_length", mean.value, steps=steps_mean, estimate=SAMPLED,
+                      standard_error=mean.standard_error, steps_standard_error=steps_error)]
+
+
 def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[float],
                        attributes: pd.DataFrame, modularity: float | None,
-                       communities: int) -> list[Statistic]:
+                       communities: int, paths: SourcePaths | None = None) -> list[Statistic]:
     """Every network statistic that applies, in a fixed order (size, reach, paths, mixing,
-    communities, centralization)."""
+    communities, centralization).
+
+    ``paths``: the shortest paths out of the sampled sources of the node path measures (in path
+    lengths) when those were sampled; the diameter is then a lower bound and the average path
+    length an estimate from them (``analyse.paths``), and the betweenness centralization, from
+    the estimated betweenness, is marked as sampled too."""
     n, m = graph.vcount(), graph.ecount()
     directed = graph.is_directed()
     undirected = undirected_version(graph)
@@ -104,7 +141,9 @@ def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[flo
     if directed:
         stats.append(Statistic("strong_components", len(graph.connected_components(mode="strong"))))
     stats.append(Statistic("largest_component_share", max(weak.sizes()) / n if n else None))
-    if m:
+    if m and paths is not None:
+        stats += _sampled_path_statistics(graph, paths, lengths)
+    elif m:
         # A weighted network's path lengths have no unit a reader can hold, so the same two
         # statistics are kept counting every tie as one step, for the readings.
         steps = (float(graph.diameter(directed=directed, unconn=True)),
@@ -144,7 +183,8 @@ def network_statistics(graph: ig.Graph, *, weighted: bool, betweenness: list[flo
     if n >= 3:
         top_b = max(betweenness)
         stats.append(Statistic("betweenness_centralization",
-                               sum(top_b - b for b in betweenness) / (n - 1)))
+                               sum(top_b - b for b in betweenness) / (n - 1),
+                               estimate=None if paths is None else SAMPLED))
     else:
         stats.append(Statistic("betweenness_centralization", None, "below_three_nodes"))
     return stats

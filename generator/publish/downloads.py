@@ -11,14 +11,16 @@ from typing import Any
 import networkx as nx
 import pandas as pd
 
-from ..analyse import MixingTable, NetworkAnalysis
+from ..analyse import MixingTable, NetworkAnalysis, PathSampling
 from ..analyse.across import StudyTable
 from ..vocabulary import (
     COMMUNITY,
     COMMUNITY_CONFIDENCE,
+    ESTIMATE_COLUMNS,
     PATH_MEASURES,
     SIGNIFICANCE_COLUMNS,
     community_method,
+    estimate_label,
     exact_text,
     measure,
 )
@@ -28,7 +30,7 @@ from .archive import ZipTime, zip_bytes
 from .graphml import graphml_bytes
 
 __all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "communities_csv", "datapackage_json", "edges_csv",
-           "graphml", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
+           "graphml", "has_estimates", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
            "significance_csv", "statistics_csv", "study_statistics_csv",
            "study_statistics_resource"]
 
@@ -56,27 +58,81 @@ def edges_csv(analysis: NetworkAnalysis) -> bytes:
     return _csv(edges)
 
 
+def has_estimates(analysis: NetworkAnalysis) -> bool:
+    """Whether some statistic of ``analysis`` is sampled or a bound (statistics.csv then has the
+    columns of ESTIMATE_COLUMNS)."""
+    return analysis.sampling is not None and any(s.estimate is not None
+                                                 for s in analysis.statistics)
+
+
+def _estimate_text(estimate: str | None, value: float | None, sampling: PathSampling | None
+                   ) -> str:
+    if value is None:
+        return ""
+    if sampling is None:
+        return estimate_label(None, sources=0, seed=0)
+    return estimate_label(estimate, sources=sampling.sources, seed=sampling.seed)
+
+
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:
-    rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
-    return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+    """statistic, value; with standard_error and estimate when some statistic is estimated."""
+    if not has_estimates(analysis):
+        rows = [(s.name, exact_text(s.value)) for s in analysis.statistics]
+        return _csv(pd.DataFrame(rows, columns=["statistic", "value"]))
+    wide = [(s.name, exact_text(s.value), exact_text(s.standard_error),
+             _estimate_text(s.estimate, s.value, analysis.sampling)) for s in analysis.statistics]
+    return _csv(pd.DataFrame(wide, columns=["statistic", "value",
+                                            *(name for name, _ in ESTIMATE_COLUMNS)]))
+
+
+def _study_columns(table: StudyTable) -> list[tuple[str, str, str]]:
+    """(column, statistic, part) in order: each statistic's value, then, when some network's
+    value of it is estimated, its standard error (if any has one) and how it was found."""
+    columns = []
+    for name in table.statistics:
+        columns.append((name, name, "value"))
+        if table.estimates and table.estimated(name):
+            if table.has_error(name):
+                columns.append((f"{name}_standard_error", name, "standard_error"))
+            columns.append((f"{name}_estimate", name, "estimate"))
+    return columns
 
 
 def study_statistics_csv(table: StudyTable) -> bytes:
     """One row per network (its id and title), one column per statistic at full precision;
-    empty where the statistic is not defined for the network or does not apply to it."""
-    rows = [[net, title, *(exact_text(v) for v in values)]
-            for net, title, values in zip(table.networks, table.titles, table.values)]
-    return _csv(pd.DataFrame(rows, columns=["network", "title", *table.statistics]))
+    empty where the statistic is not defined for the network or does not apply to it. A
+    statistic some network estimates is followed by its standard error and how it was found."""
+    columns = _study_columns(table)
+    rows = []
+    for i, (net, title, values) in enumerate(zip(table.networks, table.titles, table.values)):
+        row = [net, title]
+        for _, name, part in columns:
+            j = table.statistics.index(name)
+            if part == "value":
+                row.append(exact_text(values[j]))
+            elif part == "standard_error":
+                row.append(exact_text(table.errors[i][j]))
+            else:
+                row.append(_estimate_text(table.estimates[i][j], values[j], table.sampling[i]))
+        rows.append(row)
+    return _csv(pd.DataFrame(rows, columns=["network", "title", *(c for c, _, _ in columns)]))
 
 
 def study_statistics_resource(table: StudyTable, path: str) -> dict[str, Any]:
     """The Data Package resource of ``study_statistics_csv``; ``path`` relative to files/."""
     fields = [{"name": "network", "type": "string", "description": "Network id."},
               {"name": "title", "type": "string", "description": "Network title."}]
-    fields += [{"name": name, "type": "number",
-                "description": f"Statistic {name} (see methods.html); empty where not defined "
-                               "for the network or not applicable to it."}
-               for name in table.statistics]
+    described = dict(ESTIMATE_COLUMNS)
+    for column, name, part in _study_columns(table):
+        if part == "value":
+            text = (f"Statistic {name} (see methods.html); empty where not defined for the "
+                    "network or not applicable to it.")
+            if table.estimates and table.estimated(name):
+                text += f" Estimated or a bound where {name}_estimate says so."
+            fields.append({"name": column, "type": "number", "description": text})
+        else:
+            fields.append({"name": column, "type": "number" if part == "standard_error"
+                           else "string", "description": f"Of {name}: {described[part]}."})
     return {"name": "study-statistics", "path": path, "profile": "tabular-data-resource",
             "format": "csv", "mediatype": "text/csv", "encoding": "utf-8",
             "title": "Every network's statistics, one row per network",
@@ -225,6 +281,20 @@ def _fields(frame: pd.DataFrame, described: dict[str, str]) -> list[dict[str, st
             for c in frame.columns]
 
 
+def _statistics_fields(analysis: NetworkAnalysis) -> list[dict[str, str]]:
+    fields = [{"name": "statistic", "type": "string",
+               "description": "Statistic name; see methods.html."},
+              {"name": "value", "type": "number",
+               "description": "Value; empty where not defined."}]
+    if has_estimates(analysis):
+        fields[1]["description"] = ("Value; empty where not defined; an estimate or a lower "
+                                    "bound where the estimate column says so.")
+        fields += [{"name": name, "type": "number" if name == "standard_error" else "string",
+                    "description": text[0].upper() + text[1:] + "."}
+                   for name, text in ESTIMATE_COLUMNS]
+    return fields
+
+
 def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
                      extra: list[dict[str, Any]] | None = None) -> bytes:
     """A Frictionless Data Package descriptor (https://specs.frictionlessdata.io/) for every CSV;
@@ -254,11 +324,7 @@ def datapackage_json(analyses: list[NetworkAnalysis], *, title: str,
             {"name": f"{a.network_id}-statistics", "path": f"{a.network_id}/statistics.csv",
              "profile": "tabular-data-resource", "format": "csv", "mediatype": "text/csv",
              "encoding": "utf-8", "title": f"{a.title}: network statistics",
-             "schema": {"fields": [
-                 {"name": "statistic", "type": "string",
-                  "description": "Statistic name; see methods.html."},
-                 {"name": "value", "type": "number",
-                  "description": "Value; empty where not defined."}]}},
+             "schema": {"fields": _statistics_fields(a)}},
         ]
         resources.append(_communities_resource(a))
         if a.significance.tests:

@@ -11,6 +11,7 @@ import pandas as pd
 from ..analyse import NetworkAnalysis
 from ..analyse.compare import SeriesComparison
 from ..vocabulary import COMMUNITY, WHOLE_MEASURES, exact_text
+from .downloads import has_estimates
 
 __all__ = ["SERIES_FILES", "series_files", "series_resources"]
 
@@ -77,7 +78,10 @@ def series_resources(comparison: SeriesComparison, analyses: Mapping[str, Networ
         return {"name": name, "type": kind, "description": description}
 
     waves = [field(i, "number", f"Value in {analyses[i].title} (wave {w}); empty where not "
-                   "defined.") for i, w in zip(comparison.networks, comparison.waves)]
+                   "defined." + (f" Sampled or a lower bound where files/{i}/statistics.csv "
+                                 "says so in its estimate column." if has_estimates(analyses[i])
+                                 else ""))
+             for i, w in zip(comparison.networks, comparison.waves)]
     node_fields = [field("id", "string", "Node id as written in the input."),
                    field("label", "string", "Display label.")]
     for column in _node_table(comparison, analyses).columns[2:]:

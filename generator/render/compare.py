@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from ..analyse import NetworkAnalysis
 from ..analyse.compare import SeriesComparison
 from ..draw.compare import flow_figure_name
 from ..draw.figure import Figure
@@ -18,6 +19,7 @@ from ..vocabulary import (
     node_name,
     number,
     statistic_title,
+    statistic_value,
 )
 from .figures import FigureView, figure_view
 from .inputs import NetworkPageInput
@@ -95,6 +97,14 @@ def _text(value: float | None) -> str:
     return MISSING if value is None else number(value)
 
 
+def _statistic_text(analysis: NetworkAnalysis, name: str) -> str:
+    """A wave's statistic as its network page shows it ("at least 12" for a bound)."""
+    stat = next((s for s in analysis.statistics if s.name == name), None)
+    if stat is None or stat.value is None:
+        return MISSING
+    return statistic_value(stat.value, estimate=stat.estimate, standard_error=stat.standard_error)
+
+
 def _change(value: float) -> str:
     """A change with its sign: "+8", "-0.0123"."""
     return ("+" if value > 0 else "") + number(value)
@@ -148,8 +158,9 @@ def compare_context(series: SeriesInput, networks: dict[str, NetworkPageInput],
         page=frame, series=comparison.series,
         waves=tuple(WaveLink(w, titles[i], frame.href(network_page(i)))
                     for w, i in zip(comparison.waves, comparison.networks)),
-        statistics=tuple(StatisticAcross(statistic_title(name), tuple(_text(v) for v in values))
-                         for name, values in comparison.statistics),
+        statistics=tuple(StatisticAcross(statistic_title(name), tuple(
+            _statistic_text(networks[i].analysis, name) for i in comparison.networks))
+                         for name, _ in comparison.statistics),
         figure=view("statistics"),
         steps=tuple(steps),
         files=tuple((series_file(comparison.series, name),

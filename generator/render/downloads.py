@@ -8,6 +8,7 @@ from dataclasses import dataclass
 from ..draw.figure import Figure
 from ..vocabulary import (
     COMMUNITY,
+    ESTIMATE_COLUMNS,
     PATH_MEASURES,
     SIGNIFICANCE_COLUMNS,
     count,
@@ -107,6 +108,11 @@ def _edge_columns(item: NetworkPageInput) -> tuple[ColumnInfo, ...]:
     return tuple(ends)
 
 
+def _estimated(item: NetworkPageInput) -> bool:
+    return item.analysis.sampling is not None and any(
+        s.estimate is not None for s in item.analysis.statistics)
+
+
 def _size(sizes: Mapping[str, int], path: str) -> str:
     return file_size(sizes[path]) if path in sizes else ""
 
@@ -129,7 +135,9 @@ def network_downloads(item: NetworkPageInput, frame: PageFrame, nodes_file: str 
             ColumnInfo("statistic", "the statistic's name (such as density or "
                        "assortativity:<attribute>), defined on the Methods page"),
             ColumnInfo("value", "its value; empty when the statistic is not defined for this "
-                       "network (the network page says why)"))),
+                       "network (the network page says why)"),
+            *(ColumnInfo(name, text) for name, text in ESTIMATE_COLUMNS
+              if _estimated(item)))),
         entry("network.graphml", "The network as GraphML (an open XML format most network tools "
               "read), with node attributes and measures as node data and the weight on each tie."),
     )
@@ -206,6 +214,11 @@ def downloads_context(frame: PageFrame, networks: list[NetworkPageInput],
                                         "statistics.csv and defined on the Methods page; empty "
                                         "where the statistic is not defined for the network or "
                                         "does not apply to it"),
+                             *((ColumnInfo("<statistic>_standard_error, <statistic>_estimate",
+                                           "after a statistic that some network estimates: "
+                                           f"{ESTIMATE_COLUMNS[0][1]}; and "
+                                           f"{ESTIMATE_COLUMNS[1][1]}"),)
+                               if any(_estimated(item) for item in networks) else ()),
                          ), size=_size(known, STUDY_STATISTICS)),
             *spread_files,
             DownloadFile(ALL_DATA, frame.href(ALL_DATA),

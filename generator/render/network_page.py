@@ -10,6 +10,7 @@ from typing import Any
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
+from ..analyse.paths import DIAMETER_SWEEPS
 from ..draw.coassignment import COASSIGNMENT
 from ..draw.explorer import COMMUNITY_LEVEL, EXPLORER_MAX_NODES
 from ..vocabulary import (
@@ -24,9 +25,11 @@ from ..vocabulary import (
     left_out_sentence,
     number,
     omission_reason,
+    path_statistics_sentence,
     reading,
     share,
     statistic_title,
+    statistic_value,
     undefined_reason,
 )
 from .describe import (
@@ -146,7 +149,9 @@ def _reading_context(stat: Statistic, analysis: NetworkAnalysis) -> Reading:
     return Reading(value=float(stat.value or 0.0), attribute=attribute, numeric=numeric,
                    directed=analysis.directed, weighted=analysis.weighted,
                    weight_means=analysis.weight_means, steps=stat.steps,
-                   test=analysis.significance.test(stat.name))
+                   test=analysis.significance.test(stat.name), estimate=stat.estimate,
+                   standard_error=stat.standard_error,
+                   steps_standard_error=stat.steps_standard_error)
 
 
 def statistic_rows(analysis: NetworkAnalysis) -> tuple[StatisticRow, ...]:
@@ -160,8 +165,10 @@ def statistic_rows(analysis: NetworkAnalysis) -> tuple[StatisticRow, ...]:
                                      "not defined", f"{why} {left_out}".strip(), False))
             continue
         text = reading(stat.name, _reading_context(stat, analysis))
+        shown = statistic_value(stat.value, estimate=stat.estimate,
+                                standard_error=stat.standard_error)
         rows.append(StatisticRow(stat.name, _anchor(stat.name), statistic_title(stat.name),
-                                 number(stat.value), f"{text} {left_out}".strip(), True))
+                                 shown, f"{text} {left_out}".strip(), True))
     return tuple(rows)
 
 
@@ -259,13 +266,19 @@ def omitted_measures(analysis: NetworkAnalysis) -> tuple[tuple[str, str], ...]:
                  for name, why in analysis.omitted.items())
 
 
-def sampling_sentence(analysis: NetworkAnalysis) -> str | None:
+def sampling_sentence(analysis: NetworkAnalysis, *, statistics: bool = False) -> str | None:
+    """What was sampled; ``statistics``: with how the path statistics were estimated too (the
+    methods page)."""
     sampling = analysis.sampling
     if sampling is None:
         return None
     present = [measure_title(c).lower() for c in PATH_MEASURES if c in analysis.measures.columns]
     derived = (" Betweenness centralization is computed from the estimated betweenness."
                if "betweenness" in analysis.measures.columns else "")
+    if statistics and any(s.estimate is not None and s.name != "betweenness_centralization"
+                          for s in analysis.statistics):
+        derived += " " + path_statistics_sentence(sampling.sources, sampling.seed,
+                                                  DIAMETER_SWEEPS)
     return (f"The network has {count(sampling.nodes)} nodes, so {', '.join(present)} were "
             f"estimated from shortest paths out of {count(sampling.sources)} randomly chosen "
             f"source nodes (seed "

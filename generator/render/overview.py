@@ -9,7 +9,7 @@ from markupsafe import Markup
 from ..analyse import NetworkAnalysis
 from ..analyse.across import StudyTable
 from ..draw.figure import Figure
-from ..vocabulary import exact_text, node_name, number, statistic_title
+from ..vocabulary import exact_text, node_name, number, statistic_title, statistic_value
 from ..vocabulary.findings import (
     bridge_finding,
     community_finding,
@@ -93,11 +93,15 @@ def glance_rows(frame: PageFrame, networks: list[NetworkPageInput], table: Study
     at = {net: i for i, net in enumerate(table.networks)}
     rows = []
     for item in networks:
-        values = table.values[at[item.id]]
+        row = at[item.id]
+        values = table.values[row]
         cells = []
         for name in columns:
-            value = values[table.statistics.index(name)]
-            cells.append(GlanceCell(number(value), exact_text(value)))
+            j = table.statistics.index(name)
+            value = values[j]
+            text = number(value) if value is None or not table.estimates else statistic_value(
+                value, estimate=table.estimates[row][j], standard_error=table.errors[row][j])
+            cells.append(GlanceCell(text, exact_text(value)))
         rows.append(GlanceRow(
             title=item.title,
             href=frame.href(network_page(item.id)),

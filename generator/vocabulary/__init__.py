@@ -8,6 +8,8 @@ from __future__ import annotations
 from .formatting import (
                          DIGITS,
                          MISSING,
+                         about,
+                         at_least,
                          count,
                          count_of,
                          exact_text,
@@ -23,6 +25,7 @@ from .formatting import (
                          signed,
                          sort_key,
                          value_text,
+                         with_standard_error,
 )
 from .measures import (
                          CHANGE_MEASURES,
@@ -60,14 +63,18 @@ from .significance import (
                          untested_reason,
 )
 from .statistics import (
+                         ESTIMATE_COLUMNS,
                          NEUTRAL_BELOW,
                          STATISTICS,
                          Reading,
                          StatisticEntry,
+                         estimate_label,
                          left_out_sentence,
+                         path_statistics_sentence,
                          reading,
                          statistic,
                          statistic_title,
+                         statistic_value,
                          undefined_reason,
 )
 
@@ -76,6 +83,7 @@ __all__ = [
     "COMMUNITY_CONFIDENCE",
     "COMMUNITY_METHODS",
     "DIGITS",
+    "ESTIMATE_COLUMNS",
     "CHANGE_MEASURES",
     "HISTOGRAM_MEASURES",
     "LAYOUT_REFERENCES",
@@ -100,7 +108,13 @@ __all__ = [
     "Reading",
     "Reference",
     "StatisticEntry",
+    "about",
+    "at_least",
     "community_method",
+    "estimate_label",
+    "path_statistics_sentence",
+    "statistic_value",
+    "with_standard_error",
     "count",
     "count_of",
     "exact_text",

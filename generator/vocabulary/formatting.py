@@ -12,7 +12,10 @@ import pandas as pd
 
 __all__ = [
     "DIGITS",
+    "ERROR_DIGITS",
     "MISSING",
+    "about",
+    "at_least",
     "count",
     "count_of",
     "exact_text",
@@ -26,10 +29,12 @@ __all__ = [
     "signed",
     "sort_key",
     "value_text",
+    "with_standard_error",
 ]
 
 MISSING = "\u2014"  # an em dash marks a value that is not there
 DIGITS = 3  # significant digits of every rounded number a reader sees
+ERROR_DIGITS = 2  # significant digits of a standard error beside its estimate
 
 
 def is_missing(value: Any) -> bool:
@@ -59,6 +64,21 @@ def number(value: Any, digits: int = DIGITS) -> str:
     text = np.format_float_positional(rounded, precision=digits, unique=False, fractional=False,
                                       trim="-")
     return "0" if text in ("0", "-0") else text
+
+
+def at_least(value: Any) -> str:
+    """A lower bound: ``at least 12``."""
+    return f"at least {number(value)}"
+
+
+def about(value: Any) -> str:
+    """An estimate whose error is not known: ``about 0.123``."""
+    return f"about {number(value)}"
+
+
+def with_standard_error(value: Any, error: Any) -> str:
+    """An estimate and its standard error: ``4.21 (SE 0.031)``."""
+    return f"{number(value)} (SE {number(error, ERROR_DIGITS)})"
 
 
 def signed(value: float, digits: int = 2) -> str:

@@ -37,7 +37,9 @@ def community_method(key: str) -> CommunityMethod:
 
 
 WEIGHT_REFERENCES = ("opsahl2010", "newman2001")  # strength and path length from one weight
-SAMPLING_REFERENCES = ("brandes2007",)  # path measures from sampled sources
+# Path measures from sampled sources; the average path length's ratio estimate and the
+# diameter's lower bound from the same sources.
+SAMPLING_REFERENCES = ("brandes2007", "cochran1977", "magnien2009")
 STABILITY_REFERENCES = ("hubert1985", "danon2005")  # agreement between community runs
 LAYOUT_REFERENCES = ("fruchterman1991",)
 PALETTE_REFERENCES = ("okabe2008",)

@@ -28,6 +28,11 @@ _ALL = [
     Reference("brandes2007", "Brandes, U. & Pich, C.: Centrality estimation in large networks. "
               "International Journal of Bifurcation and Chaos 17(7):2303-2318, 2007.",
               "10.1142/S0218127407018403"),
+    Reference("magnien2009", "Magnien, C., Latapy, M. & Habib, M.: Fast computation of "
+              "empirically tight bounds for the diameter of massive graphs. ACM Journal of "
+              "Experimental Algorithmics 13:1.10, 2009.", "10.1145/1412228.1455266"),
+    Reference("cochran1977", "Cochran, W. G.: Sampling Techniques, 3rd edition, chapter 6 (ratio "
+              "estimators). Wiley, 1977."),
     Reference("wasserman1994", "Wasserman, S. & Faust, K.: Social Network Analysis: Methods and "
               "Applications. Cambridge University Press, 1994.", "10.1017/CBO9780511815478"),
     Reference("marchiori2000", "Marchiori, M. & Latora, V.: Harmony in the small-world. Physica A "

@@ -12,20 +12,33 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
-from .formatting import count_of, number, share
+from .formatting import (
+    ERROR_DIGITS,
+    about,
+    at_least,
+    count,
+    count_of,
+    number,
+    share,
+    with_standard_error,
+)
 from .significance import is_clear, null_clause
 
 if TYPE_CHECKING:
     from ..analyse.nulls import NullTest
 
 __all__ = [
+    "ESTIMATE_COLUMNS",
     "NEUTRAL_BELOW",
     "STATISTICS",
     "UNDEFINED_REASONS",
     "Reading",
     "StatisticEntry",
+    "estimate_label",
+    "path_statistics_sentence",
     "reading",
     "statistic",
+    "statistic_value",
     "statistic_title",
     "left_out_sentence",
     "undefined_reason",
@@ -50,6 +63,9 @@ class Reading:
     weight_means: str = "strength"
     steps: float | None = None  # the same path statistic counting each tie as one step
     test: NullTest | None = None  # the statistic's test against rewired networks, if it ran
+    estimate: str | None = None  # None: exact; "sampled" or "lower_bound" (Statistic.estimate)
+    standard_error: float | None = None  # of a sampled value
+    steps_standard_error: float | None = None  # of a sampled ``steps``
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -87,7 +103,13 @@ def _steps(value: float) -> str:
     return "1 step" if value == 1 else f"{number(value)} steps"
 
 
+def _error(error: float | None) -> str:
+    return "" if error is None else f", standard error {number(error, ERROR_DIGITS)}"
+
+
 def _diameter(r: Reading) -> str:
+    if r.estimate == "lower_bound":
+        return _diameter_bound(r)
     if not r.weighted:
         return f"No two connected nodes are more than {_steps(r.value)} (ties) apart."
     text = f"The farthest two connected nodes are {number(r.value)} apart {_length_unit(r)}."
@@ -97,12 +119,39 @@ def _diameter(r: Reading) -> str:
     return text
 
 
+def _diameter_bound(r: Reading) -> str:
+    found = ("the longest shortest path found from the sampled source nodes, so the diameter is "
+             "at least this and may be larger")
+    if not r.weighted:
+        return f"Some connected nodes are {_steps(r.value)} (ties) apart: {found}."
+    text = f"Some connected nodes are {number(r.value)} apart {_length_unit(r)}: {found}."
+    if r.steps is not None:
+        text += (f" Counting every tie as one step, some are {_steps(r.steps)} apart, so the "
+                 "diameter in steps is at least that.")
+    return text
+
+
 def _average_path(r: Reading) -> str:
+    if r.estimate == "sampled":
+        return _average_path_sampled(r)
     if not r.weighted:
         return f"Connected pairs are on average {_steps(r.value)} (ties) apart."
     text = f"Connected pairs are on average {number(r.value)} apart {_length_unit(r)}."
     if r.steps is not None:
         text += f" Counting every tie as one step, they are on average {_steps(r.steps)} apart."
+    return text
+
+
+def _average_path_sampled(r: Reading) -> str:
+    how = "estimated from the pairs that start at the sampled source nodes"
+    if not r.weighted:
+        return (f"Connected pairs are on average about {_steps(r.value)} (ties) apart ({how}"
+                f"{_error(r.standard_error)}).")
+    text = (f"Connected pairs are on average about {number(r.value)} apart {_length_unit(r)} "
+            f"({how}{_error(r.standard_error)}).")
+    if r.steps is not None:
+        text += (f" Counting every tie as one step, they are on average about {_steps(r.steps)} "
+                 f"apart{_error(r.steps_standard_error)}.")
     return text
 
 
@@ -369,6 +418,8 @@ UNDEFINED_REASONS = {
     "agreement is not defined.",
     "one_group": "The communities and the attribute each have a single group.",
     "no_values": "No node has a value.",
+    "no_sampled_paths": "None of the sampled source nodes has a tie, so no path could be "
+    "followed from them.",
 }
 
 
@@ -379,3 +430,46 @@ def undefined_reason(key: str) -> str:
 def left_out_sentence(count: int) -> str:
     """Said after an assortativity that left nodes without a value out."""
     return f"{count_of(count, 'node')} without a value left out." if count else ""
+
+
+def statistic_value(value: float, *, estimate: str | None, standard_error: float | None) -> str:
+    """A defined statistic as a page shows it: rounded; a lower bound as "at least 12"; a sampled
+    estimate with its standard error, "4.21 (SE 0.031)", or as "about 0.123" without one."""
+    if estimate == "lower_bound":
+        return at_least(value)
+    if estimate == "sampled":
+        return about(value) if standard_error is None else with_standard_error(value,
+                                                                               standard_error)
+    return number(value)
+
+
+# The columns statistics.csv gains when some statistic of the network is estimated.
+ESTIMATE_COLUMNS = (
+    ("standard_error", "the standard error of a sampled estimate, over the sampled source nodes "
+     "(Cochran's ratio-estimator form); empty for exact values and bounds"),
+    ("estimate", "how the value was found: exact, sampled (from how many source nodes, with "
+     "which seed) or a lower bound (the largest value found; the exact one may be larger)"),
+)
+
+
+def estimate_label(estimate: str | None, *, sources: int, seed: int) -> str:
+    """The estimate column of statistics.csv: "exact", "sampled from 2000 sources, seed 1" or
+    "lower bound from 2000 sampled sources, seed 1"."""
+    if estimate == "sampled":
+        return f"sampled from {sources} sources, seed {seed}"
+    if estimate == "lower_bound":
+        return f"lower bound from {sources} sampled sources, seed {seed}"
+    return "exact"
+
+
+def path_statistics_sentence(sources: int, seed: int, sweeps: int) -> str:
+    """How the path statistics of a network with sampled path measures were found."""
+    return (f"The average path length is estimated from the shortest paths out of the same "
+            f"{count(sources)} sampled source nodes (seed {seed}): the total length of the paths "
+            "to every node they reach over the number of such pairs (a ratio estimate), shown "
+            "with its standard error over the sources (Cochran's ratio-estimator form, with the "
+            "finite population correction). The diameter is a lower bound, shown as \"at "
+            "least\": the longest of those paths and of the paths out of up to "
+            f"{count(sweeps)} further nodes, each the far end of the longest path the search "
+            "before found (double sweeps); the exact diameter may be larger. No all-pairs "
+            "search was run.")
