@@ -2,22 +2,12 @@
 
 from __future__ import annotations
 
-import math
+import itertools
 
 import igraph as ig
+import numpy as np
 
 __all__ = ["burt_brokerage"]
-
-
-def _neighbour_weights(graph: ig.Graph, weighted: bool) -> list[dict[int, float]]:
-    weights: list[dict[int, float]] = [{} for _ in range(graph.vcount())]
-    strengths = graph.es["strength"] if weighted else [1.0] * graph.ecount()
-    for (a, b), w in zip(graph.get_edgelist(), strengths):
-        if a == b:
-            continue
-        weights[a][b] = weights[a].get(b, 0.0) + w
-        weights[b][a] = weights[b].get(a, 0.0) + w
-    return weights
 
 
 def burt_brokerage(undirected: ig.Graph, *, weighted: bool) -> tuple[list[float], list[float]]:
@@ -30,32 +20,48 @@ def burt_brokerage(undirected: ig.Graph, *, weighted: bool) -> tuple[list[float]
     other neighbours: low for a node whose contacts are not tied to each other. Effective size
     e_i = sum over neighbours j of (1 - sum_q p_iq m_jq): the number of neighbours less their
     redundancy; unweighted it equals n_i - 2 t_i / n_i (t_i ties among the n_i neighbours).
-    Cost: O(sum of squared degrees).
+
+    A q adds to node i's sums for neighbour j only when q is tied to both, so every term comes
+    from a triangle (i, j, q): the sums are taken over igraph's list of triangles, each read in
+    its six orders, with array arithmetic instead of a loop per pair of neighbours.
 
     References: Burt, R. S.: Structural Holes: The Social Structure of Competition. Harvard
     University Press, 1992. doi:10.4159/9780674029095
     """
-    weights = _neighbour_weights(undirected, weighted)
-    share = []  # p_ij
-    of_max = []  # m_ij
-    for row in weights:
-        total = sum(row.values())
-        top = max(row.values()) if row else 0.0
-        share.append({j: w / total for j, w in row.items()} if total else {})
-        of_max.append({j: w / top for j, w in row.items()} if top else {})
-    constraint: list[float] = []
-    effective: list[float] = []
-    for p in share:
-        if not p:
-            constraint.append(math.nan)
-            effective.append(math.nan)
-            continue
-        c = 0.0
-        e = 0.0
-        for j, direct in p.items():
-            indirect = sum(p_iq * share[q].get(j, 0.0) for q, p_iq in p.items() if q != j)
-            c += (direct + indirect) ** 2
-            e += 1.0 - sum(p_iq * of_max[j].get(q, 0.0) for q, p_iq in p.items() if q != j)
-        constraint.append(c)
-        effective.append(e)
-    return constraint, effective
+    n = undirected.vcount()
+    edges = np.array(undirected.get_edgelist(), dtype=np.int64).reshape(-1, 2)
+    strengths = (np.array(undirected.es["strength"], dtype=float) if weighted
+                 else np.ones(len(edges)))
+    keep = edges[:, 0] != edges[:, 1]
+    edges, strengths = edges[keep], strengths[keep]
+    # Each tie as two arcs, parallel ties summed (as networkx's undirected graph holds them).
+    src = np.concatenate([edges[:, 0], edges[:, 1]])
+    dst = np.concatenate([edges[:, 1], edges[:, 0]])
+    codes, where = np.unique(src * n + dst, return_inverse=True)
+    weight = np.bincount(where, weights=np.concatenate([strengths, strengths]))
+    src, dst = codes // max(n, 1), codes % max(n, 1)
+    total = np.bincount(src, weights=weight, minlength=n)
+    top = np.zeros(n)
+    np.maximum.at(top, src, weight)
+    share = weight / total[src]  # p of each arc i -> j
+    of_max = weight / top[src]  # m of each arc j -> q
+
+    def arc(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+        found: np.ndarray = np.searchsorted(codes, a * n + b)
+        return found
+
+    indirect = np.zeros(len(codes))
+    redundancy = np.zeros(n)
+    triangles = np.array(undirected.list_triangles(), dtype=np.int64).reshape(-1, 3)
+    for first, second, third in itertools.permutations(range(3)):
+        i, j, q = triangles[:, first], triangles[:, second], triangles[:, third]
+        p_iq = share[arc(i, q)]
+        indirect += np.bincount(arc(i, j), weights=p_iq * share[arc(q, j)], minlength=len(codes))
+        redundancy += np.bincount(i, weights=p_iq * of_max[arc(j, q)], minlength=n)
+    degree = np.bincount(src, minlength=n).astype(float)
+    constraint = np.bincount(src, weights=(share + indirect) ** 2, minlength=n)
+    effective = degree - redundancy
+    alone = degree == 0
+    constraint[alone] = np.nan
+    effective[alone] = np.nan
+    return constraint.tolist(), effective.tolist()
