@@ -160,6 +160,7 @@ class MeasuresConfig:
 
     exact_paths_up_to: int = DEFAULT_EXACT_PATHS_UP_TO
     path_sample_sources: int = DEFAULT_PATH_SAMPLE_SOURCES
+    chosen: frozenset[str] = frozenset()  # the keys study.toml sets
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -614,6 +615,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         measures=MeasuresConfig(
             exact_paths_up_to=m.positive_int("exact_paths_up_to", DEFAULT_EXACT_PATHS_UP_TO),
             path_sample_sources=m.positive_int("path_sample_sources", DEFAULT_PATH_SAMPLE_SOURCES),
+            chosen=frozenset(m.data),
         ),
         sharing=SharingConfig(
             pseudonymize=sh.get("pseudonymize", bool, True),

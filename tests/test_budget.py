@@ -73,3 +73,16 @@ def test_a_scaled_network_says_so_in_the_build_and_on_the_methods_page(tmp_path:
     assert (f"With {ties} ties this network got {analysis.communities.runs} community runs"
             in methods)
     assert "[communities] runs" in methods
+
+
+def test_sampled_path_sources_are_held_to_a_budget_of_sources_times_ties():
+    from generator.analyse.budget import MIN_PATH_SOURCES, PATH_WORK, path_sources
+    from generator.config import MeasuresConfig
+
+    measures = MeasuresConfig(path_sample_sources=2000)
+    assert path_sources(measures, PATH_WORK // 2000) == (measures, False)
+    fewer, cut = path_sources(measures, 1_000_000)
+    assert cut and fewer.path_sample_sources == PATH_WORK // 1_000_000 == 400
+    assert path_sources(measures, 10**9)[0].path_sample_sources == MIN_PATH_SOURCES
+    chosen = MeasuresConfig(path_sample_sources=2000, chosen=frozenset({"path_sample_sources"}))
+    assert path_sources(chosen, 10**7) == (chosen, False)

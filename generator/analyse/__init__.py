@@ -11,7 +11,7 @@ import pandas as pd
 from ..config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
 from ..errors import Finding
 from ..ingest import CleanNetwork
-from .budget import scaled_for_size
+from .budget import path_sources, scaled_for_size
 from .communities import (
     NOT_PERTURBED,
     AttributeComparison,
@@ -121,6 +121,9 @@ def analyse_network(network: CleanNetwork, *, communities: CommunitiesConfig,
     (1: no processes of its own, as when the network is already analysed in a worker)."""
     communities, scaled_significance, scaled = scaled_for_size(
         communities, significance or SignificanceConfig(null_samples=0), len(network.edges))
+    measures, fewer_sources = path_sources(measures, len(network.edges))
+    if fewer_sources and len(network.nodes) > measures.exact_paths_up_to:
+        scaled += ("path_sample_sources",)
     if significance is not None:
         significance = scaled_significance
     graph = build_graph(network)

@@ -20,9 +20,9 @@ LAYOUT_ITERATIONS = 1000  # Fruchterman-Reingold iterations up to LARGE_LAYOUT_N
 # Above this many tied nodes the iterations shrink so that nodes x iterations stays within
 # LAYOUT_WORK (at least MIN_ITERATIONS), and the layout starts from the community graph's own
 # layout with each member near its community, so fewer iterations still settle into a picture.
-LARGE_LAYOUT_NODES = 20_000
+LARGE_LAYOUT_NODES = 5_000
 LAYOUT_WORK = LARGE_LAYOUT_NODES * LAYOUT_ITERATIONS
-MIN_ITERATIONS = 100
+MIN_ITERATIONS = 50
 
 
 def layout_iterations(tied_nodes: int) -> int:

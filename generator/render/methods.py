@@ -283,7 +283,9 @@ def network_methods(item: NetworkPageInput, frame: PageFrame, cite: _Citations,
 
 _SCALED_WORDS = {"runs": ("community runs", "[communities] runs"),
                  "perturbations": ("perturbed reruns", "[communities] perturbations"),
-                 "null_samples": ("rewired networks", "[significance] null_samples")}
+                 "null_samples": ("rewired networks", "[significance] null_samples"),
+                 "path_sample_sources": ("sampled path sources",
+                                         "[measures] path_sample_sources")}
 
 
 def _capital(text: str | None) -> str | None:
@@ -296,7 +298,8 @@ def scaled_sentence(analysis: NetworkAnalysis) -> str | None:
         return None
     counts = {"runs": analysis.communities.runs,
               "perturbations": analysis.stability.perturbations,
-              "null_samples": analysis.significance.samples}
+              "null_samples": analysis.significance.samples,
+              "path_sample_sources": analysis.sampling.sources if analysis.sampling else 0}
     parts = [f"{number(counts[name])} {_SCALED_WORDS[name][0]}" for name in analysis.scaled]
     keys = [_SCALED_WORDS[name][1] for name in analysis.scaled]
     return (f"with {number(len(analysis.edges))} ties this network got {list_in_words(parts)} "
