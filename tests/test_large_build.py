@@ -22,7 +22,8 @@ NODES = 20_000
 def built(tmp_path_factory) -> tuple[Path, float]:
     root = tmp_path_factory.mktemp("large") / "study"
     write_study(root, TIES, nodes=NODES, toml_extra=(
-        "\n[communities]\nruns = 2\nperturbations = 0\n\n[significance]\nnull_samples = 0\n"))
+        "\n[communities]\nruns = 2\nperturbations = 0\n\n[significance]\nnull_samples = 0\n"
+        "\n[measures]\npath_sample_sources = 500\n"))
     start = time.perf_counter()
     build_study(root, output=root.parent / "site", progress=Progress(quiet=True))
     return root.parent / "site", time.perf_counter() - start

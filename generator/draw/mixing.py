@@ -4,6 +4,7 @@ attribute, and an ego-alter scatter of each numeric one (drawing computes no mea
 from __future__ import annotations
 
 from collections import Counter
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -27,6 +28,11 @@ _COUNTS = LinearSegmentedColormap.from_list("tie-counts", ["#F7FBFF", "#9CC3DE",
 _DARK_FROM = 0.55  # cells darker than this share of the scale get white numbers
 
 
+NUMBERED_GROUPS = 12  # up to this many groups each cell shows its count
+NAMED_GROUPS = 40  # up to this many groups the rows and columns are named
+MAX_SIDE = 9.0  # inches: the heatmap's side at most
+
+
 def mixing_figure_names(analysis: NetworkAnalysis) -> dict[str, str]:
     """The figure stem of each attribute: ``mixing-clinic`` or ``scatter-years_in_post``."""
     stems = mixing_file_stems(analysis.attributes)
@@ -38,21 +44,29 @@ def mixing_figure_names(analysis: NetworkAnalysis) -> dict[str, str]:
 def _heatmap(analysis: NetworkAnalysis, table: MixingTable, name: str) -> Figure:
     counts = np.array(table.counts, dtype=float)
     k = len(table.groups)
-    side = max(2.4, 0.55 * k + 0.8)
+    numbered = k <= NUMBERED_GROUPS
+    side = min(max(2.4, 0.55 * k + 0.8), MAX_SIDE)
     title = f"{analysis.title}: ties between {table.attribute} groups"
     with drawing_style():
         fig, (ax,) = new_chart(side + 2.6, side, title=title, left=1.6, right=1.0, bottom=1.1)
         top = float(counts.max()) if counts.size else 0.0
-        image = ax.imshow(counts, cmap=_COUNTS, vmin=0, vmax=max(top, 1.0), aspect="auto")
-        for r in range(k):
-            for c in range(k):
-                value = counts[r, c]
-                dark = top > 0 and value / top > _DARK_FROM
-                ax.text(c, r, f"{int(value):,}", ha="center", va="center", fontsize=8.5,
-                        color="white" if dark else INK)
-        ax.set_xticks(range(k), labels=list(table.groups), rotation=45 if k > 3 else 0,
-                      ha="right" if k > 3 else "center")
-        ax.set_yticks(range(k), labels=list(table.groups))
+        image = ax.imshow(counts, cmap=_COUNTS, vmin=0, vmax=max(top, 1.0), aspect="auto",
+                          interpolation="nearest")
+        if numbered:
+            for r in range(k):
+                for c in range(k):
+                    value = counts[r, c]
+                    dark = top > 0 and value / top > _DARK_FROM
+                    ax.text(c, r, f"{int(value):,}", ha="center", va="center", fontsize=8.5,
+                            color="white" if dark else INK)
+        if k <= NAMED_GROUPS:
+            small: dict[str, Any] = {} if numbered else {"fontsize": 7}
+            ax.set_xticks(range(k), labels=list(table.groups), rotation=45 if k > 3 else 0,
+                          ha="right" if k > 3 else "center", **small)
+            ax.set_yticks(range(k), labels=list(table.groups), **small)
+        else:
+            ax.set_xticks([])
+            ax.set_yticks([])
         if table.directed:
             ax.set_ylabel(f"tie from ({table.attribute})")
             ax.set_xlabel(f"tie to ({table.attribute})")
@@ -79,13 +93,18 @@ def _heatmap(analysis: NetworkAnalysis, table: MixingTable, name: str) -> Figure
                    f"{count_of(int(largest[0]), 'tie')}." if table.directed else
                    f" The largest cell is {table.groups[r]} with {table.groups[c]}, "
                    f"{count_of(int(largest[0]), 'tie')}.")
+    printed = (", each cell printed with its count" if numbered else
+               ", shaded by count (the counts are in the mixing table)")
     alt = (f"Heatmap of tie counts between the {count_of(k, 'group')} of {table.attribute} "
-           f"({how}), each cell printed with its count. {count_of(inside, 'tie')} stay inside "
+           f"({how}){printed}. {count_of(inside, 'tie')} stay inside "
            f"a group and {count_of(between, 'tie')} cross between groups; E-I index {ei}."
            f"{biggest}")
     caption = (f"Each cell counts ties between two {table.attribute} groups "
                f"({'from the row group to the column group' if table.directed else 'either way'})"
                "; the diagonal holds ties inside a group. Darker cells hold more ties.")
+    if k > NAMED_GROUPS:
+        caption += (f" With {number(k)} groups they are not named here: rows and columns "
+                    "follow the order of the mixing table.")
     if table.left_out_ties:
         caption += (f" {count_of(table.left_out_ties, 'tie')} with an end that has no "
                     f"{table.attribute} {'is' if table.left_out_ties == 1 else 'are'} left out.")
@@ -93,16 +112,19 @@ def _heatmap(analysis: NetworkAnalysis, table: MixingTable, name: str) -> Figure
 
 
 def _tie_values(analysis: NetworkAnalysis, attribute: str) -> list[tuple[float, float]]:
-    values = analysis.nodes[attribute]
-    pairs = []
-    for source, target in zip(analysis.edges["source"], analysis.edges["target"]):
-        a, b = values.loc[source], values.loc[target]
-        if pd.isna(a) or pd.isna(b):
-            continue
-        pairs.append((float(a), float(b)))
-        if not analysis.directed:
-            pairs.append((float(b), float(a)))
-    return pairs
+    """The attribute at both ends of every tie (both ways round when undirected), ties with a
+    missing end left out, in tie order."""
+    values = pd.to_numeric(analysis.nodes[attribute], errors="coerce").to_numpy(dtype=float)
+    sources, targets = analysis.tie_vertices()
+    a, b = values[sources], values[targets]
+    kept = ~(np.isnan(a) | np.isnan(b))
+    a, b = a[kept], b[kept]
+    if analysis.directed:
+        return list(zip(a.tolist(), b.tolist()))
+    both = np.empty((2 * len(a), 2))
+    both[0::2, 0], both[0::2, 1] = a, b
+    both[1::2, 0], both[1::2, 1] = b, a
+    return [(float(x), float(y)) for x, y in both]
 
 
 def _scatter(analysis: NetworkAnalysis, attribute: str, name: str) -> Figure:
