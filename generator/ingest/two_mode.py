@@ -91,7 +91,7 @@ def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
     mode_col = table.column(MODE_COLUMN) if has_mode else None
     rows = []
     first_line: dict[tuple[str | None, str], int] = {}
-    for row, line in zip(table.rows, table.lines):
+    for row, line in zip(table.rows, table.lines.tolist()):
         node = row[id_col]
         mode = row[mode_col] if mode_col is not None else None
         if mode is not None and mode not in net.modes:
@@ -136,7 +136,7 @@ def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks:
     rows: list[tuple[str, int]] = []
     row_line: dict[str, int] = {}
     ties: list[_RawTie] = []
-    for row, line in zip(table.rows, table.lines):
+    for row, line in zip(table.rows, table.lines.tolist()):
         label = row[0]
         if label == "":
             checks.add(Finding("error", name, "a row has no id in the first column", line=line,
@@ -207,7 +207,7 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
     matrix_rows: list[tuple[str, int]] = []
     matrix_columns: list[str] = []
     if isinstance(net.data, EdgeListSource):
-        ties = _read_edge_list(net, net.data, data_name, checks)
+        ties = _read_edge_list(net, net.data, data_name, checks).raw()
         weighted = net.data.weight is not None
         columns = (net.data.source, net.data.target)
     else:
