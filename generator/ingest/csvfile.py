@@ -288,15 +288,20 @@ def _columnar_table(text: str, name: str, delimiter: str, row_labels: bool) -> T
     the first, a NUL byte), which then names the problem's line exactly."""
     if not text or "\x00" in text or text.startswith("\ufeff"):
         return None
-    # The strict reader, run in C without keeping its rows, proves the file is valid CSV, counts
-    # each record's values, and shows whether every record is one physical line.
-    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
-    try:
-        lengths = np.fromiter(map(len, reader), dtype=np.int64)
-    except csv.Error:
-        return None
-    if reader.line_num != len(lengths):
-        return None  # some quoted value spans lines
+    if '"' not in text and text.count("\r") == text.count("\r\n"):
+        # No quotes and every line ends in LF or CRLF: each line is a record, and its values
+        # are its separators plus one.
+        lengths = _values_per_line(text, delimiter)
+    else:
+        # The strict reader, run in C without keeping its rows, proves the file is valid CSV,
+        # counts each record's values, and shows whether every record is one physical line.
+        reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter, strict=True)
+        try:
+            lengths = np.fromiter(map(len, reader), dtype=np.int64)
+        except csv.Error:
+            return None
+        if reader.line_num != len(lengths):
+            return None  # some quoted value spans lines
     try:
         frame = pd.read_csv(io.StringIO(text), sep=delimiter, header=None, dtype=object,
                             na_filter=False, keep_default_na=False, skip_blank_lines=False,
@@ -360,6 +365,15 @@ def _columnar_table(text: str, name: str, delimiter: str, row_labels: bool) -> T
                  tuple((new_index[i], n, first) for i, (n, first) in sorted(trimmed.items())
                        if i in new_index),
                  tuple(findings), plain=_plain(text, delimiter))
+
+
+def _values_per_line(text: str, delimiter: str) -> np.ndarray:
+    """How many values each line of a file with no quotes holds (a blank line counts one)."""
+    data = np.frombuffer(text.encode("utf-8"), dtype=np.uint8)
+    breaks = np.flatnonzero(data == 10)
+    lines = len(breaks) + (1 if len(data) and data[-1] != 10 else 0)
+    separators = np.flatnonzero(data == ord(delimiter))
+    return np.bincount(np.searchsorted(breaks, separators), minlength=lines).astype(np.int64) + 1
 
 
 _SPACE_IN_VALUE = re.compile(r"[^\S\r\n]")  # whitespace other than line breaks

@@ -29,9 +29,12 @@ def natural_key(text: str) -> NaturalKey:
 
     The text itself breaks ties ("a1" and "a01"), so the order is total and the same in every
     process."""
-    parts = tuple((0, int(part), "") if part.isdigit() else (1, 0, part)
-                  for part in re.split(r"(\d+)", text) if part != "")
+    parts = tuple([(0, int(part), "") if part.isdigit() else (1, 0, part)
+                   for part in _DIGITS.split(text) if part != ""])
     return (parts, text)
+
+
+_DIGITS = re.compile(r"(\d+)")
 
 
 @dataclass
@@ -496,12 +499,12 @@ def _mirrored_listing(kept: np.ndarray, a: np.ndarray, b: np.ndarray, ties: _Tie
     return kept
 
 
-def _clean_ties(ties: _Ties, net: NetworkConfig, name: str, order: pd.Index, weighted: bool,
-                checks: DataChecks) -> tuple[pd.DataFrame, np.ndarray]:
-    """The edges frame, and for every node (in ``order``) whether a tie touches it."""
+def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkConfig, name: str,
+                order: list[str], weighted: bool, checks: DataChecks
+                ) -> tuple[pd.DataFrame, np.ndarray]:
+    """The edges frame, and for every node (in ``order``) whether a tie touches it. ``a_all``
+    and ``b_all`` are the places in ``order`` of each tie's source and target."""
     unit = ties.unit
-    a_all = order.get_indexer(pd.Index(ties.source, dtype=object))
-    b_all = order.get_indexer(pd.Index(ties.target, dtype=object))
     loops = np.flatnonzero(a_all == b_all)
     if len(loops):
         lines = ties.line[loops].tolist()
@@ -516,9 +519,12 @@ def _clean_ties(ties: _Ties, net: NetworkConfig, name: str, order: pd.Index, wei
     a, b = a_all[kept], b_all[kept]
     if not net.directed:
         a, b = np.minimum(a, b), np.maximum(a, b)
-    frame = pd.DataFrame({"a": a, "b": b, "weight": ties.weight[kept], "line": ties.line[kept]})
-    # Sort before combining so sums do not depend on the order of rows in the file.
-    frame = frame.sort_values(["a", "b", "weight", "line"], kind="mergesort")
+    # Sort before combining so sums do not depend on the order of rows in the file: by pair,
+    # weight and line (the ties are in file order, and the sort is stable).
+    weight = ties.weight[kept]
+    ordered = np.lexsort((weight, b, a))
+    frame = pd.DataFrame({"a": a[ordered], "b": b[ordered], "weight": weight[ordered],
+                          "line": ties.line[kept][ordered]}, index=ordered)
     repeated = frame[frame.duplicated(["a", "b"], keep=False)]
     if len(repeated):
         extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
@@ -533,7 +539,8 @@ def _clean_ties(ties: _Ties, net: NetworkConfig, name: str, order: pd.Index, wei
         merged = merged.set_index(["a", "b"])
         merged.loc[exact.index, "weight"] = exact
         merged = merged.reset_index()
-    names = order.to_numpy(dtype=object)
+    names = np.empty(len(order), dtype=object)
+    names[:] = order
     sources = merged["a"].to_numpy(dtype=np.int64)
     targets = merged["b"].to_numpy(dtype=np.int64)
     edges = pd.DataFrame({
@@ -606,9 +613,13 @@ def _refuse_extra_header_rows(frame: pd.DataFrame, lines: dict[str, int], tie_id
 
 def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) -> None:
     """'a' and 'A' are two nodes; say so, since a person typed two ways is a common slip."""
+    folded = [node.casefold() for node in ids]
+    clashing = np.flatnonzero(pd.Series(folded, dtype=object).duplicated(keep=False).to_numpy())
+    if not len(clashing):
+        return
     groups: dict[str, list[str]] = {}
-    for node in ids:
-        groups.setdefault(node.casefold(), []).append(node)
+    for i in clashing.tolist():  # only the ids that share their folded form, in order
+        groups.setdefault(folded[i], []).append(ids[i])
     clashes = [g for g in groups.values() if len(g) > 1]
     if not clashes:
         return
@@ -630,29 +641,34 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     nodes_name = study.relative(net.nodes) if net.nodes is not None else data_name
     if net.nodes is not None:
         node_frame, node_lines, node_unit = _read_node_list(net, net.nodes, nodes_name, checks)
+    row_labels: list[str] = []
     if isinstance(net.data, EdgeListSource):
         ties = _read_edge_list(net, net.data, data_name, checks)
         weighted = net.data.weight is not None
-        listed = pd.unique(np.concatenate([ties.source, ties.target]))
     else:
         ties, row_labels, weighted = _read_matrix(net, net.data, data_name, checks)
-        listed = np.array(row_labels, dtype=object)
     checks.raise_if_errors()
+    # Every tie end as a code into ``named`` (sources and targets interleaved, in file order).
+    ends = np.empty(2 * len(ties), dtype=object)
+    ends[0::2], ends[1::2] = ties.source, ties.target
+    codes, named = pd.factorize(ends)
+    listed = set(named.tolist()) | set(row_labels)  # a matrix lists nodes with no ties too
     if node_frame is not None:
-        _refuse_extra_header_rows(node_frame, node_lines, set(listed.tolist()), net, nodes_name,
-                                  checks, node_unit)
+        _refuse_extra_header_rows(node_frame, node_lines, listed, net, nodes_name, checks,
+                                  node_unit)
     if not len(ties) and node_frame is None:
         raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
                                 "the network would be empty"))
 
     known = node_frame.index if node_frame is not None else pd.Index([], dtype=object)
     if node_frame is not None:
-        # Each node missing from the node list, with the line of the tie naming it first.
-        ends = np.empty(2 * len(ties), dtype=object)
-        ends[0::2], ends[1::2] = ties.source, ties.target
-        missing = np.flatnonzero(known.get_indexer(pd.Index(ends, dtype=object)) == -1)
-        first = pd.Series(ends[missing]).drop_duplicates(keep="first")
-        unknown = dict(zip(first.tolist(), ties.line[missing[first.index] // 2].tolist()))
+        # Each node missing from the node list, with the line of the tie naming it first. Codes
+        # are given in order of first appearance, so a code's first place is where the running
+        # maximum of the codes reaches it.
+        first_place = np.flatnonzero(np.diff(np.maximum.accumulate(codes), prepend=-1) > 0)
+        missing = np.flatnonzero(known.get_indexer(pd.Index(named, dtype=object)) == -1)
+        unknown = dict(zip(named[missing].tolist(),
+                           ties.line[first_place[missing] // 2].tolist()))
         unit = ties.unit
         if len(unknown) == 1:
             ((node, line),) = unknown.items()
@@ -667,11 +683,12 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                                f"{shown}", value=str(next(iter(unknown))), count=len(unknown),
                                unit=unit))
 
-    all_ids = sorted(set(known.tolist()) | set(listed.tolist()), key=natural_key)
+    all_ids = sorted(set(known.tolist()) | listed, key=natural_key)
     _warn_ids_equal_but_for_case(all_ids, study.relative(net.nodes) if net.nodes else data_name,
                                  checks)
-    order = pd.Index(all_ids, dtype=object)
-    edges, touched = _clean_ties(ties, net, data_name, order, weighted, checks)
+    place = pd.Index(all_ids, dtype=object).get_indexer(pd.Index(named, dtype=object))[codes]
+    edges, touched = _clean_ties(ties, place[0::2], place[1::2], net, data_name, all_ids,
+                                 weighted, checks)
 
     if node_frame is None:
         node_frame = pd.DataFrame(index=pd.Index(all_ids, name="id"))
