@@ -21,13 +21,14 @@ import pandas as pd
 
 from ..errors import DataError, Finding
 
-__all__ = ["DELIMITERS", "MAX_LINES_PER_VALUE", "Table", "read_table"]
+__all__ = ["DELIMITERS", "MAX_LINES_PER_VALUE", "Table", "read_table", "table_from_columns"]
 
 # Separators a study may declare with ``delimiter``; the names are for messages.
 DELIMITERS = {",": "','", ";": "';'", "\t": "a tab", "|": "'|'"}
 # A quoted value may hold line breaks (a free-text comment), but one spanning more lines than this
 # is almost always a quote that was never closed, swallowing the rows after it.
 MAX_LINES_PER_VALUE = 10
+PARQUET_SUFFIX = ".parquet"  # files with this suffix are read as Parquet, not CSV
 
 
 def _text_array(values: Sequence[str]) -> np.ndarray:
@@ -87,7 +88,7 @@ class Table:
                 found.append(Finding(
                     "fix", self.name, f"{count} {'value' if count == 1 else 'values'} "
                     f"had spaces before or after them, removed (first on {self.unit} {first})",
-                    line=first, column=name, count=count))
+                    line=first, column=name, count=count, unit=self.unit))
         return found
 
     def column(self, name: str) -> int:
@@ -112,7 +113,8 @@ class Table:
             raise DataError(Finding(
                 "error", self.name, "a value holds a line break or another control "
                 "character; ids, labels and numbers must be plain text on one line",
-                line=int(self.lines[row]), column=self.header[i], value=self.columns[i][row]))
+                line=int(self.lines[row]), column=self.header[i], value=self.columns[i][row],
+                unit=self.unit))
 
     def require(self, *names: str, what: str) -> None:
         """Refuse the file unless every named column is present, listing the ones that are."""
@@ -189,14 +191,23 @@ def _delimiter_error(name: str, found: str) -> DataError:
         f"{decimal}", line=1))
 
 
-def read_table(path: Path, name: str, *, delimiter: str = ",", row_labels: bool = False
-               ) -> Table:
+def read_table(path: Path, name: str, *, delimiter: str = ",", row_labels: bool = False,
+               decimal: str = ".") -> Table:
     """Read ``path`` as UTF-8 CSV (a byte-order mark is allowed); every value stays text.
 
     Ids such as "007" must survive as written, so nothing is converted here. With
     ``row_labels`` (an adjacency matrix) the first column holds labels and its header cell may be
-    empty.
+    empty. A file named *.parquet is read as Parquet (see parquet.py; ``decimal`` is the mark
+    its numbers are written with as text).
     """
+    if path.suffix.lower() == PARQUET_SUFFIX:
+        from .parquet import read_parquet_table
+
+        if row_labels:
+            raise DataError(Finding("error", name, "an adjacency matrix is read from CSV only; "
+                                    "save it as CSV, or give its ties as an edge list (which "
+                                    "may be Parquet)"))
+        return read_parquet_table(path, name, decimal=decimal)
     text = _decode(path.read_bytes(), name)
     fast = _columnar_table(text, name, delimiter, row_labels)
     return fast if fast is not None else _row_table(text, name, delimiter, row_labels)
@@ -402,8 +413,8 @@ def _strip(values: np.ndarray) -> np.ndarray:
 
 
 def _drop_unnamed_columns(header: list[str], columns: list[np.ndarray], lines: np.ndarray,
-                          name: str, findings: list[Finding], *, keep_first: bool = False
-                          ) -> tuple[list[str], list[np.ndarray], list[int]]:
+                          name: str, findings: list[Finding], *, keep_first: bool = False,
+                          unit: str = "line") -> tuple[list[str], list[np.ndarray], list[int]]:
     """Columns with no name and no values (trailing commas from a spreadsheet) are dropped; a
     column with no name but with values is refused, since nothing could refer to it. Returns the
     header, the columns and the old index of each column kept."""
@@ -415,13 +426,14 @@ def _drop_unnamed_columns(header: list[str], columns: list[np.ndarray], lines: n
         if len(filled):
             raise DataError(Finding(
                 "error", name, f"column {index + 1} has no name in the header row but holds "
-                f"values (first on line {int(lines[filled[0]])}); give it a name or delete it",
-                line=int(lines[filled[0]]), value=columns[index][filled[0]]))
+                f"values (first on {unit} {int(lines[filled[0]])}); give it a name or delete it",
+                line=int(lines[filled[0]]), value=columns[index][filled[0]], unit=unit))
         empty.append(index)
     if not empty:
         return header, columns, list(range(len(header)))
     if len(empty) == len(header):
-        raise DataError(Finding("error", name, "the header row has no column names", line=1))
+        raise DataError(Finding("error", name, "the header row has no column names",
+                                line=1 if unit == "line" else None))
     findings.append(Finding(
         "fix", name, f"{len(empty)} empty {'column' if len(empty) == 1 else 'columns'} with no "
         "name removed (as spreadsheets export trailing separators)", count=len(empty)))
@@ -431,7 +443,8 @@ def _drop_unnamed_columns(header: list[str], columns: list[np.ndarray], lines: n
 
 
 def _normalise(header: list[str], columns: list[np.ndarray], lines: np.ndarray, name: str,
-               findings: list[Finding]) -> tuple[list[str], list[np.ndarray]]:
+               findings: list[Finding], *, unit: str = "line"
+               ) -> tuple[list[str], list[np.ndarray]]:
     """Unicode NFC for every value, so one id typed two ways is one id."""
     changed = np.zeros(len(lines), dtype=bool)
     out = []
@@ -442,11 +455,45 @@ def _normalise(header: list[str], columns: list[np.ndarray], lines: np.ndarray, 
     new_header = [unicodedata.normalize("NFC", cell) for cell in header]
     rows_changed = np.flatnonzero(changed)
     if len(rows_changed) or new_header != header:
-        first = int(lines[rows_changed[0]]) if len(rows_changed) else 1
+        first: int | None = int(lines[rows_changed[0]]) if len(rows_changed) else 1
+        if unit != "line" and not len(rows_changed):
+            first = None  # only the column names changed; a Parquet file has no header line
         count = len(rows_changed) + (new_header != header)
         findings.append(Finding(
             "fix", name, f"{count} {'row' if count == 1 else 'rows'} held letters written in "
             "decomposed form (such as e followed by a combining accent); rewritten in the "
             "composed form (Unicode NFC) so the same name always matches",
-            line=first, count=count))
+            line=first, count=count, unit=unit))
     return new_header, out
+
+
+def table_from_columns(name: str, header: list[str], raw: list[np.ndarray], *,
+                       unit: str = "row") -> Table:
+    """A Table from columns already split (a Parquet file's, as text): rows of empty values are
+    skipped, values stripped and normalised as a CSV file's are; ``lines`` counts rows from 1."""
+    if not header:
+        raise DataError(Finding("error", name, "has no columns; it needs a column per value"))
+    stripped = [_strip(col) for col in raw]
+    blank = np.ones(len(raw[0]), dtype=bool)
+    for col in stripped:
+        blank &= col == ""
+    rows = np.flatnonzero(~blank)
+    if not len(rows):
+        raise DataError(Finding("error", name, "has column names but no data rows"))
+    lines = (rows + 1).astype(np.int64)
+    columns = [col[rows] for col in stripped]
+    trimmed: dict[int, tuple[int, int]] = {}
+    for j, col in enumerate(raw):
+        moved = np.flatnonzero(col[rows] != columns[j])
+        if len(moved):
+            trimmed[j] = (len(moved), int(lines[moved[0]]))
+    header = [cell.strip() for cell in header]
+    findings: list[Finding] = []
+    header, columns, kept = _drop_unnamed_columns(header, columns, lines, name, findings,
+                                                  unit=unit)
+    _refuse_repeated_names(header, name, None)
+    header, columns = _normalise(header, columns, lines, name, findings, unit=unit)
+    new_index = {old: new for new, old in enumerate(kept)}
+    return Table(name, tuple(header), tuple(columns), lines,
+                 tuple((new_index[i], n, first) for i, (n, first) in sorted(trimmed.items())
+                       if i in new_index), tuple(findings), unit=unit)

@@ -134,7 +134,7 @@ def _read_node_list(net: NetworkConfig, path: Path, name: str, checks: DataCheck
                     ) -> tuple[pd.DataFrame, dict[str, int], str]:
     """The node list indexed by id (all text, file order), the line of each id, and whether the
     file counts lines or rows."""
-    table = read_table(path, name, delimiter=net.delimiter)
+    table = read_table(path, name, delimiter=net.delimiter, decimal=net.decimal)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
@@ -315,7 +315,8 @@ def _all_numbers(values: np.ndarray, decimal: str) -> bool:
 
 def _read_edge_list(net: NetworkConfig, edge_list: EdgeListSource, name: str, checks: DataChecks
                     ) -> _Ties:
-    table = read_table(edge_list.path, name, delimiter=net.delimiter)
+    table = read_table(edge_list.path, name, delimiter=net.delimiter,
+                       decimal=net.decimal)
     checks.findings += table.findings
     columns = [edge_list.source, edge_list.target] + ([edge_list.weight] if edge_list.weight else [])
     table.require(*columns, what="edge list")

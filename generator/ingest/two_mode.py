@@ -79,7 +79,7 @@ def typed_mode_attributes(network: TwoModeNetwork, mode: str | None) -> pd.DataF
 def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
                 ) -> tuple[list[str], list[tuple[str | None, str, int, tuple[str, ...]]], bool]:
     """The node list's header and its rows as (mode or None, id, line, row)."""
-    table = read_table(path, name, delimiter=net.delimiter)
+    table = read_table(path, name, delimiter=net.delimiter, decimal=net.decimal)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
