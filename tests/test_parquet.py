@@ -186,3 +186,27 @@ def test_a_study_read_from_parquet_builds_the_site_it_builds_from_csv(tmp_path):
         assert swapped == sites["csv"][path], path
         named += [path] if swapped != data else []
     assert sorted(named) == ["downloads.html", "methods.html"]  # they name the files read
+
+
+def test_a_two_mode_parquet_edge_list_names_rows(tmp_path):
+    from generator.config import load_study
+    from generator.ingest.two_mode import read_two_mode
+
+    root = parquet_study(tmp_path, {"person": ["p1", "p2", "p1", "p3"],
+                                    "event": ["e1", "e1", "e1", "e2"]},
+                         {"id": ["p1", "p2", "p2", "e1"], "mode": ["person"] * 3 + ["event"]},
+                         source="person", target="event", two_mode=True,
+                         modes=["person", "event"])
+    study = load_study(root)
+    with pytest.raises(DataError) as caught:
+        read_two_mode(study, study.two_mode[0])
+    (finding,) = caught.value.findings
+    assert finding.format() == ("data/nodes.parquet, row 3, column 'id': node id is repeated as "
+                                "a person (first on row 2) (value: 'p2')")
+    pq.write_table(pa.table({"id": ["p1", "p2", "e1"], "mode": ["person", "person", "event"]}),
+                   root / "data" / "nodes.parquet")
+    network = read_two_mode(study, study.two_mode[0])
+    merged = next(f for f in network.checks.findings if "repeated tie" in f.message)
+    assert (merged.line, merged.unit) == (1, "row")
+    assert merged.message == "1 repeated tie merged, kept once; rows 1, 3"
+    assert sorted(network.ids("person")) == ["p1", "p2", "p3"]
