@@ -201,3 +201,47 @@ def test_a_large_edge_list_is_cleaned_as_a_row_by_row_count_says(tmp_path):
     assert (spaces.line, spaces.column, spaces.count) == (len(rows), "source", 1)
     got = {frozenset((s, t)): w for s, t, w in clean.edges.itertuples(index=False)}
     assert got == strength  # duplicates = "sum", either direction one tie
+
+
+def test_natural_order_is_the_natural_key_sort():
+    from generator.ingest.network import natural_key, natural_order
+
+    rng = random.Random(2)
+    pieces = ["a", "b", "A", "s", "0", "1", "01", "007", "10", "9", "\u0663", "\u00e9", "x y",
+              "-", ".", "99999999999999999999"]
+    for k in range(4000):
+        if k % 2:  # the shapes the fast path takes: text, then a number of up to 18 digits
+            ids = list({rng.choice(["", "p", "s", "ab", "\u00e9", "P"])
+                        + rng.choice(["", "0", "1", "01", "10", "007", "\u0663",
+                                      "123456789012345678"]) for _ in range(rng.randint(0, 12))}
+                       - {""})
+        else:
+            ids = list({"".join(rng.choice(pieces) for _ in range(rng.randint(1, 4)))
+                        for _ in range(rng.randint(0, 12))})
+        assert natural_order(ids) == sorted(ids, key=natural_key), ids
+
+
+def test_numbers_of_a_column_are_each_values_number():
+    import math
+
+    import numpy as np
+
+    from generator.ingest.network import _number, _numbers
+
+    rng = random.Random(9)
+    pieces = ["1", "0", "7", ".", "e", "E", "+", "-", "5", ",", "_", " ", "inf", "nan", "\u0663",
+              "x"]
+    for decimal in (".", ","):
+        for k in range(600):
+            texts = ["".join(rng.choice(pieces[:9] if k % 2 else pieces)
+                             for _ in range(rng.randint(0, 4))) for _ in range(rng.randint(1, 8))]
+            values = np.empty(len(texts), dtype=object)
+            values[:] = texts
+            valid, numbers = _numbers(values, decimal)
+            for text, ok, number in zip(texts, valid, numbers):
+                expected = _number(text, decimal)
+                assert bool(ok) == (expected is not None), text
+                if expected is not None:
+                    assert (math.isnan(expected) and math.isnan(number)) or (
+                        number == expected and math.copysign(1, number) == math.copysign(
+                            1, expected)), text

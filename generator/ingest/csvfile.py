@@ -388,24 +388,29 @@ def _values_per_line(text: str, delimiter: str) -> np.ndarray:
 
 
 _SPACE_IN_VALUE = re.compile(r"[^\S\r\n]")  # whitespace other than line breaks
-_CONTROL_IN_VALUE = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f]")  # not tab, CR or LF
 
 
 def _may_hold_spaces(text: str, delimiter: str) -> bool:
     """Whether some value may have whitespace to strip; False only when no whitespace but line
     breaks (and the tab separator outside quotes) occurs in the file."""
+    if delimiter == "\t" and '"' in text:
+        return True
+    if text.isascii():  # str.strip's whitespace among ASCII characters
+        spaces = " \x0b\x0c\x1c\x1d\x1e\x1f" + ("" if delimiter == "\t" else "\t")
+        return any(space in text for space in spaces)
     if delimiter == "\t":
-        if '"' in text:
-            return True
         text = text.replace("\t", "")
     return _SPACE_IN_VALUE.search(text) is not None
 
 
 def _plain(text: str, delimiter: str) -> bool:
     """Whether no value of a file of one-line records can hold a control character."""
-    if _CONTROL_IN_VALUE.search(text):
+    if "\t" in text and (delimiter != "\t" or '"' in text):
         return False
-    return "\t" not in text or (delimiter == "\t" and '"' not in text)
+    # Control characters are ASCII, so the UTF-8 bytes show them; line breaks and tabs aside.
+    data = np.frombuffer(text.encode("utf-8"), dtype=np.uint8)
+    breaks = text.count("\n") + text.count("\r") + text.count("\t")
+    return int(np.count_nonzero(data < 32)) == breaks and "\x7f" not in text
 
 
 def _strip(values: np.ndarray) -> np.ndarray:
