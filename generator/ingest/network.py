@@ -555,12 +555,21 @@ def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkC
     if not net.directed:
         a, b = np.minimum(a, b), np.maximum(a, b)
     # Sort before combining so sums do not depend on the order of rows in the file: by pair,
-    # weight and line (the ties are in file order, and the sort is stable).
-    weight = ties.weight[kept]
-    ordered = np.lexsort((weight, b, a))
+    # weight and line. The ties are in file order and both sorts are stable; only pairs listed
+    # more than once need the second.
+    weight, line = ties.weight[kept], ties.line[kept]
+    pair = a.astype(np.int64) * max(len(order), 1) + b
+    ordered = np.argsort(pair, kind="stable")
+    same = pair[ordered][1:] == pair[ordered][:-1]  # a row and the next are one pair
+    repeat = np.zeros(len(pair), dtype=bool)
+    repeat[1:] |= same
+    repeat[:-1] |= same
+    if repeat.any():
+        group = ordered[repeat]
+        ordered[repeat] = group[np.lexsort((weight[group], pair[group]))]
     frame = pd.DataFrame({"a": a[ordered], "b": b[ordered], "weight": weight[ordered],
-                          "line": ties.line[kept][ordered]}, index=ordered)
-    repeated = frame[frame.duplicated(["a", "b"], keep=False)]
+                          "line": line[ordered]}, index=ordered)
+    repeated = frame[repeat]
     if len(repeated):
         extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
         how = f"weights combined by {_combine_rule(net)}" if weighted else "kept once"
@@ -568,12 +577,18 @@ def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkC
         lines = sorted(repeated["line"].tolist())
         checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; {unit}s "
                            f"{_lines(lines)}", line=lines[0], count=extra, unit=unit))
-    merged = frame.groupby(["a", "b"], sort=True)["weight"].agg(_COMBINE[net.duplicates]).reset_index()
-    if weighted and len(repeated) and net.duplicates == "sum" and net.weight_means == "distance":
-        exact = repeated.groupby(["a", "b"], sort=True)["weight"].agg(_combine_distances)
-        merged = merged.set_index(["a", "b"])
-        merged.loc[exact.index, "weight"] = exact
-        merged = merged.reset_index()
+    # One row per pair: its first row, with the combined weight where the pair is repeated (a
+    # pair listed once keeps its weight, which is its sum, mean and max).
+    first = np.ones(len(pair), dtype=bool)
+    first[1:] = ~same
+    merged = frame.loc[first, ["a", "b", "weight"]].reset_index(drop=True)
+    if len(repeated):
+        if weighted and net.duplicates == "sum" and net.weight_means == "distance":
+            combined = repeated.groupby(["a", "b"], sort=True)["weight"].agg(_combine_distances)
+        else:
+            combined = repeated.groupby(["a", "b"], sort=True)["weight"].agg(
+                _COMBINE[net.duplicates])
+        merged.loc[repeat[first], "weight"] = combined.to_numpy(dtype=np.float64)
     names = pd.array(order, dtype=str)
     sources = merged["a"].to_numpy(dtype=np.int64)
     targets = merged["b"].to_numpy(dtype=np.int64)
