@@ -49,7 +49,8 @@ class ConfigError(NetfolioError):
 class Finding:
     """One thing the data checks found: a fix applied, a refusal, or an error that stops the build.
 
-    ``line`` counts as a text editor does: the header is line 1 of a CSV file.
+    ``line`` counts as a text editor does: the header is line 1 of a CSV file. A Parquet file
+    has no lines: its findings count data rows from 1 instead, and ``unit`` is "row".
     """
 
     level: str  # "error" | "warning" | "fix" | "note"
@@ -59,9 +60,10 @@ class Finding:
     column: str | None = None
     value: str | None = None
     count: int = 1
+    unit: str = "line"  # what ``line`` counts: "line" (CSV) or "row" (Parquet)
 
     def format(self) -> str:
-        where = self.file + (f", line {self.line}" if self.line else "")
+        where = self.file + (f", {self.unit} {self.line}" if self.line else "")
         where += f", column '{self.column}'" if self.column else ""
         value = f" (value: {self.value!r})" if self.value is not None else ""
         return f"{where}: {self.message}{value}"

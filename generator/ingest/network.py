@@ -8,14 +8,15 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from ..config import EdgeListSource, MatrixSource, NetworkConfig, StudyConfig
 from ..errors import DataError, Finding
 from ..vocabulary import MEASURE_NAMES, count_of
-from .csvfile import read_table
+from .csvfile import Table, read_table
 
-__all__ = ["CleanNetwork", "DataChecks", "natural_key", "read_network"]
+__all__ = ["CleanNetwork", "DataChecks", "natural_key", "natural_order", "read_network"]
 
 MAX_LINES_LISTED = 20  # a finding lists at most this many line numbers
 
@@ -28,9 +29,35 @@ def natural_key(text: str) -> NaturalKey:
 
     The text itself breaks ties ("a1" and "a01"), so the order is total and the same in every
     process."""
-    parts = tuple((0, int(part), "") if part.isdigit() else (1, 0, part)
-                  for part in re.split(r"(\d+)", text) if part != "")
+    parts = tuple([(0, int(part), "") if part.isdigit() else (1, 0, part)
+                   for part in _DIGITS.split(text) if part != ""])
     return (parts, text)
+
+
+_DIGITS = re.compile(r"(\d+)")
+_TEXT_THEN_NUMBER = re.compile(r"(\D*)(\d{0,18})")
+
+
+def natural_order(ids: list[str]) -> list[str]:
+    """``sorted(ids, key=natural_key)``, fast when every id is text followed by a number of at
+    most 18 digits ("s01", "p12345", "007", "north"), as ids mostly are: then the natural key
+    is (text, number, the id itself), with no text sorting first and no number before any
+    number, which numpy sorts at once."""
+    matches = [_TEXT_THEN_NUMBER.fullmatch(i) for i in ids]
+    if not all(matches):
+        return sorted(ids, key=natural_key)
+    texts = np.empty(len(ids), dtype=object)
+    texts[:] = [m.group(1) for m in matches if m]
+    digits = [m.group(2) for m in matches if m]
+    numbers = np.array([int(d) if d else -1 for d in digits], dtype=np.int64)
+    whole = np.empty(len(ids), dtype=object)
+    whole[:] = ids
+    text_rank = np.unique(texts, return_inverse=True)[1] if len(ids) else texts
+    id_rank = np.unique(whole, return_inverse=True)[1] if len(ids) else whole
+    # A key's first part is (1, 0, text) when there is text, else (0, number, ""); a missing
+    # number (-1) sorts before every number, as a shorter key does.
+    order = np.lexsort((id_rank, numbers, text_rank, texts != ""))
+    return [ids[i] for i in order.tolist()]
 
 
 @dataclass
@@ -82,6 +109,7 @@ class CleanNetwork:
 # Plain decimal numbers only: Python's float() would also take "1_000" and non-Latin digits.
 _NUMBER = re.compile(r"[+-]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][+-]?[0-9]+)?")
 _SPECIAL = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity", "nan"}
+_PLAIN_DIGITS = re.compile(r"[0-9.eE+-]*")
 
 
 def _number(text: str, decimal: str = ".") -> float | None:
@@ -92,6 +120,36 @@ def _number(text: str, decimal: str = ".") -> float | None:
     if _NUMBER.fullmatch(text) or text.lower() in _SPECIAL:
         return float(text)
     return None
+
+
+def _numbers(values: np.ndarray, decimal: str = ".") -> tuple[np.ndarray, np.ndarray]:
+    """``_number`` of every value at once: whether each is a number, and its value (NaN where it
+    is not). Each distinct text is read once, so a column of repeated weights costs little."""
+    if decimal == "." and len(values) and _PLAIN_DIGITS.fullmatch("".join(values.tolist())):
+        # Only digits, '.', 'e', 'E', '+' and '-': for such text Python's float() takes exactly
+        # what _NUMBER matches (no spaces, underscores, inf or nan can be spelled), so one
+        # conversion of the whole column decides, unless some value is not a number.
+        try:
+            numbers = values.astype(np.float64)
+        except ValueError:
+            pass
+        else:
+            return np.ones(len(values), dtype=bool), numbers
+    codes, distinct = pd.factorize(values)
+    texts = [str(v) for v in distinct]
+    if decimal == ",":
+        valid = np.fromiter(("." not in t for t in texts), bool, len(texts))
+        texts = [t.replace(",", ".") for t in texts]
+    else:
+        valid = np.ones(len(texts), dtype=bool)
+    valid &= np.fromiter((_NUMBER.fullmatch(t) is not None or t.lower() in _SPECIAL
+                          for t in texts), bool, len(texts))
+    numbers = np.full(len(texts), np.nan)
+    if valid.any():
+        chosen = np.empty(int(valid.sum()), dtype=object)
+        chosen[:] = [t for t, ok in zip(texts, valid) if ok]
+        numbers[valid] = chosen.astype(np.float64)  # Python's float() of each text
+    return valid[codes], numbers[codes]
 
 
 
@@ -107,32 +165,37 @@ def _lines(lines: list[int]) -> str:
 
 
 def _read_node_list(net: NetworkConfig, path: Path, name: str, checks: DataChecks
-                    ) -> tuple[pd.DataFrame, dict[str, int]]:
-    """The node list indexed by id (all text, file order) and the line of each id."""
-    table = read_table(path, name, delimiter=net.delimiter)
+                    ) -> tuple[pd.DataFrame, dict[str, int], str]:
+    """The node list indexed by id (all text, file order), the line of each id, and whether the
+    file counts lines or rows."""
+    table = read_table(path, name, delimiter=net.delimiter, decimal=net.decimal)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
         table.require(net.label, what="node list")
     table.refuse_control_characters(net.node_id, net.label)
     checks.findings += table.trimmed_findings(net.node_id)
-    id_col = table.column(net.node_id)
-    first_line: dict[str, int] = {}
-    for row, line in zip(table.rows, table.lines):
-        node = row[id_col]
-        if node == "":
-            checks.add(Finding("error", name, "a node has an empty id", line=line, column=net.node_id))
-        elif node in first_line:
-            checks.add(Finding("error", name, f"node id is repeated (first on line {first_line[node]})",
-                               line=line, column=net.node_id, value=node))
+    ids = table.values(net.node_id)
+    empty = ids == ""
+    repeated = pd.Series(ids).duplicated(keep="first").to_numpy() & ~empty
+    firsts = ~(empty | repeated)
+    first_line = dict(zip(ids[firsts].tolist(), table.lines[firsts].tolist()))
+    for i in np.flatnonzero(empty | repeated):  # only the offending rows, in file order
+        line = int(table.lines[i])
+        if empty[i]:
+            checks.add(Finding("error", name, "a node has an empty id", line=line,
+                               column=net.node_id, unit=table.unit))
         else:
-            first_line[node] = line
+            checks.add(Finding("error", name, f"node id is repeated (first on {table.unit} "
+                               f"{first_line[ids[i]]})", line=line, column=net.node_id,
+                               value=ids[i], unit=table.unit))
     checks.raise_if_errors()
-    frame = pd.DataFrame(list(table.rows), columns=list(table.header), dtype="string")
+    frame = pd.DataFrame(dict(zip(table.header, table.columns)), columns=list(table.header),
+                         dtype="string")
     frame = frame.set_index(net.node_id)
     frame.index = frame.index.astype(str)
     frame.index.name = "id"
-    return frame, first_line
+    return frame, first_line, table.unit
 
 
 _CANONICAL_NUMBER = r"-?(0|[1-9][0-9]*)(\.[0-9]+)?"
@@ -159,8 +222,8 @@ def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
 
 
 def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, name: str,
-                    lines: dict[str, int], label_column: str | None, checks: DataChecks
-                    ) -> pd.DataFrame:
+                    lines: dict[str, int], label_column: str | None, checks: DataChecks,
+                    unit: str = "line") -> pd.DataFrame:
     """Apply study.toml's ``categorical`` and ``numeric`` declarations: a categorical column
     keeps its values as text (codes 0-3 are four groups, not a scale); every filled cell of a
     numeric one must be a number. Raises DataError naming file, line, column and value."""
@@ -179,24 +242,19 @@ def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, 
         typed[column] = raw[column].astype("string").str.strip().replace({"": pd.NA})
     for column in net.numeric:
         text = raw[column].astype("string").str.strip().replace({"": pd.NA})
-        values: list[float | None] = []
-        for node, cell in text.items():
-            if pd.isna(cell):
-                values.append(None)
-                continue
-            value = _number(str(cell), net.decimal)
-            if value is None or not math.isfinite(value):
-                checks.add(Finding("error", name, f"numeric = [...] in study.toml declares "
-                                   f"{column!r} numeric, but this value is not a number",
-                                   line=lines.get(str(node)), column=column, value=str(cell)))
-                values.append(None)
-            else:
-                values.append(value)
+        present = text.notna().to_numpy()
+        cells = text.to_numpy(dtype=object, na_value="")
+        valid, numbers = _numbers(cells, net.decimal)
+        for i in np.flatnonzero(present & ~(valid & np.isfinite(numbers))):
+            checks.add(Finding("error", name, f"numeric = [...] in study.toml declares "
+                               f"{column!r} numeric, but this value is not a number",
+                               line=lines.get(str(text.index[int(i)])), column=column,
+                               value=str(cells[i]), unit=unit))
         checks.raise_if_errors()
-        numbers = pd.array(values, dtype="Float64")
-        whole = all(v is None or float(v).is_integer() for v in values)
-        typed[column] = pd.Series(numbers, index=typed.index).astype("Int64" if whole
-                                                                      else "Float64")
+        filled = np.where(present, numbers, 0.0)
+        whole = bool(np.all(filled % 1 == 0))
+        typed[column] = pd.Series(pd.arrays.FloatingArray(filled, ~present),
+                                  index=typed.index).astype("Int64" if whole else "Float64")
     return typed
 
 
@@ -212,10 +270,38 @@ class _RawTie:
     line: int
 
 
+@dataclass(frozen=True, eq=False)
+class _Ties:
+    """Ties as read, column by column in file order: ids, weight (1 when unweighted) and the line
+    (or, for Parquet, the row) of each."""
+
+    source: np.ndarray  # object arrays of str
+    target: np.ndarray
+    weight: np.ndarray  # float64
+    line: np.ndarray  # int64
+    unit: str = "line"
+
+    def __len__(self) -> int:
+        return len(self.line)
+
+    def raw(self) -> list[_RawTie]:
+        return [_RawTie(s, t, w, n) for s, t, w, n in zip(
+            self.source.tolist(), self.target.tolist(), self.weight.tolist(), self.line.tolist())]
+
+    @classmethod
+    def of(cls, ties: list[_RawTie], unit: str = "line") -> _Ties:
+        source, target = np.empty(len(ties), dtype=object), np.empty(len(ties), dtype=object)
+        source[:] = [t.source for t in ties]
+        target[:] = [t.target for t in ties]
+        return cls(source, target, np.array([t.weight for t in ties], dtype=np.float64),
+                   np.array([t.line for t in ties], dtype=np.int64), unit)
+
+
 def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: str,
-                  checks: DataChecks) -> float | None:
+                  checks: DataChecks, unit: str = "line") -> float | None:
     if text == "":
-        checks.add(Finding("error", name, "weight is missing", line=line, column=column, value=text))
+        checks.add(Finding("error", name, "weight is missing", line=line, column=column,
+                           value=text, unit=unit))
         return None
     value = _number(text, net.decimal)
     if value is None or math.isnan(value):
@@ -223,85 +309,89 @@ def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: s
                 "; this looks like a decimal comma: set decimal = \",\" (and delimiter = \";\") "
                 "in this network's table of study.toml" if re.fullmatch(r"[0-9]+,[0-9]+", text) else "")
         checks.add(Finding("error", name, f"weight is not a number{mark}", line=line,
-                           column=column, value=text))
+                           column=column, value=text, unit=unit))
     elif math.isinf(value):
-        checks.add(Finding("error", name, "weight is infinite", line=line, column=column, value=text))
+        checks.add(Finding("error", name, "weight is infinite", line=line, column=column,
+                           value=text, unit=unit))
     elif value < 0:
         checks.add(Finding("error", name, "weight is negative; netfolio reads weights as tie "
                            "strengths or distances, which cannot be below 0", line=line,
-                           column=column, value=text))
+                           column=column, value=text, unit=unit))
     else:
         return value
     return None
 
 
-def _note_unused_columns(header: tuple[str, ...], rows: tuple[tuple[str, ...], ...],
-                         used: list[str], net: NetworkConfig, name: str, checks: DataChecks) -> None:
+def _note_unused_columns(table: Table, used: list[str], net: NetworkConfig, name: str,
+                         checks: DataChecks) -> None:
     """Name the edge-list columns the analysis does not read, so a forgotten ``weight`` key (or a
     column the analyst expected to matter) does not pass unnoticed."""
-    unused = [c for c in header if c not in used]
+    unused = [c for c in table.header if c not in used]
     if not unused:
         return
     listed = ", ".join(repr(c) for c in unused)
     message = (f"{'column' if len(unused) == 1 else 'columns'} {listed} "
                f"{'is' if len(unused) == 1 else 'are'} not used by the analysis")
     if net.weight is None:
-        numeric = [c for c in unused if _all_numbers(rows, header.index(c), net.decimal)]
+        numeric = [c for c in unused if _all_numbers(table.values(c), net.decimal)]
         if numeric:
             message += (f"; the network is read as unweighted because study.toml sets no "
                         f"'weight' key: to use {numeric[0]!r} as tie weights, set "
                         f"weight = \"{numeric[0]}\"")
-    checks.add(Finding("note", name, message, line=1, column=unused[0], count=len(unused)))
+    checks.add(Finding("note", name, message, line=1 if table.unit == "line" else None,
+                       column=unused[0], count=len(unused)))
 
 
-def _all_numbers(rows: tuple[tuple[str, ...], ...], index: int, decimal: str) -> bool:
-    filled = [row[index] for row in rows if row[index]]
-    return bool(filled) and all(_number(v, decimal) is not None for v in filled)
+def _all_numbers(values: np.ndarray, decimal: str) -> bool:
+    filled = values[values != ""]
+    return bool(len(filled)) and bool(_numbers(filled, decimal)[0].all())
 
 
 def _read_edge_list(net: NetworkConfig, edge_list: EdgeListSource, name: str, checks: DataChecks
-                    ) -> list[_RawTie]:
-    table = read_table(edge_list.path, name, delimiter=net.delimiter)
+                    ) -> _Ties:
+    table = read_table(edge_list.path, name, delimiter=net.delimiter,
+                       decimal=net.decimal)
     checks.findings += table.findings
     columns = [edge_list.source, edge_list.target] + ([edge_list.weight] if edge_list.weight else [])
     table.require(*columns, what="edge list")
-    _note_unused_columns(table.header, table.rows, columns, net, name, checks)
+    _note_unused_columns(table, columns, net, name, checks)
     table.refuse_control_characters(*columns)
     checks.findings += table.trimmed_findings(edge_list.source, edge_list.target)
-    s, t = table.column(edge_list.source), table.column(edge_list.target)
+    unit = table.unit
+    source, target = table.values(edge_list.source), table.values(edge_list.target)
     weight_column = edge_list.weight
-    w = table.column(weight_column) if weight_column else None
-    for row, line in list(zip(table.rows, table.lines))[:HEADER_LIKE_ROWS]:
-        code = next((i for i in (s, t, w) if i is not None and _IMPORT_CODE.match(row[i])), None)
+    texts = [source, target] + ([table.values(weight_column)] if weight_column else [])
+    for k in range(min(HEADER_LIKE_ROWS, len(table))):
+        code = next((i for i, values in enumerate(texts) if _IMPORT_CODE.match(values[k])), None)
         if code is not None:
+            line = int(table.lines[k])
             raise DataError(Finding(
-                "error", name, f"line {line} does not look like a tie: column "
-                f"{table.header[code]!r} holds {row[code]!r}, which looks like an import code. "
+                "error", name, f"{unit} {line} does not look like a tie: column "
+                f"{columns[code]!r} holds {texts[code][k]!r}, which looks like an import code. "
                 "Survey tools often export extra header rows (question text, import codes) under "
-                f"the column names; delete {_span(table.lines[0], line)} and build again", line=line,
-                column=table.header[code], value=row[code]))
-    ties = []
-    zero_lines = []
-    for row, line in zip(table.rows, table.lines):
-        source, target = row[s], row[t]
-        for column, value in ((edge_list.source, source), (edge_list.target, target)):
-            if value == "":
+                f"the column names; delete {_span(int(table.lines[0]), line, unit)} and build "
+                "again", line=line, column=columns[code], value=texts[code][k], unit=unit))
+    no_source, no_target = source == "", target == ""
+    weights = np.ones(len(table), dtype=np.float64)
+    refused = np.zeros(len(table), dtype=bool)
+    if weight_column is not None:
+        written = table.values(weight_column)
+        valid, weights = _numbers(written, net.decimal)
+        with np.errstate(invalid="ignore"):
+            refused = ~valid | ~np.isfinite(weights) | (weights <= 0)
+    for i in np.flatnonzero(no_source | no_target | refused):  # the offending rows, in order
+        line = int(table.lines[i])
+        for column, missing in ((edge_list.source, no_source[i]), (edge_list.target, no_target[i])):
+            if missing:
                 checks.add(Finding("error", name, "a tie has an empty node id", line=line,
-                                   column=column, value=value))
-        weight = 1.0
-        if w is not None and weight_column is not None:
-            checked = _check_weight(row[w], net, name, line, weight_column, checks)
-            if checked is None:
-                continue
-            if checked == 0:
-                zero_lines.append(line)
+                                   column=column, value="", unit=unit))
+        if weight_column is not None and refused[i]:
+            cell = str(written[i])
+            if _check_weight(cell, net, name, line, weight_column, checks, unit) == 0:
                 checks.add(Finding("error", name, _zero_weight_reason(net), line=line,
-                                   column=weight_column, value=row[w]))
-                continue
-            weight = checked
-        if source and target:
-            ties.append(_RawTie(source, target, weight, line))
-    return ties
+                                   column=weight_column, value=cell, unit=unit))
+    keep = ~(no_source | no_target | refused)
+    return _Ties(source[keep], target[keep], weights[keep], table.lines[keep], unit)
 
 
 def _zero_weight_reason(net: NetworkConfig) -> str:
@@ -313,13 +403,13 @@ def _zero_weight_reason(net: NetworkConfig) -> str:
 
 
 def _read_matrix(net: NetworkConfig, matrix: MatrixSource, name: str, checks: DataChecks
-                 ) -> tuple[list[_RawTie], list[str], bool]:
+                 ) -> tuple[_Ties, list[str], bool]:
     """Rows are senders (source), columns receivers (target); a cell is the tie's weight."""
     table = read_table(matrix.path, name, delimiter=net.delimiter, row_labels=True)
     checks.findings += table.findings
     table.refuse_control_characters(*table.header)
     col_labels = list(table.header[1:])
-    row_labels = [row[0] for row in table.rows]
+    row_labels = table.columns[0].tolist()
     if sorted(row_labels) != sorted(col_labels):
         only_rows = sorted(set(row_labels) - set(col_labels))
         only_cols = sorted(set(col_labels) - set(row_labels))
@@ -328,31 +418,47 @@ def _read_matrix(net: NetworkConfig, matrix: MatrixSource, name: str, checks: Da
                else "a row label is repeated")
         raise DataError(Finding("error", name, "an adjacency matrix needs the same labels in its "
                                 f"header row and first column: {odd}", line=1))
-    values: dict[tuple[str, str], float] = {}
-    line_of: dict[str, int] = {}
-    for row, line in zip(table.rows, table.lines):
-        line_of[row[0]] = line
-        for label, cell in zip(col_labels, row[1:]):
-            checked = 0.0 if cell == "" else _check_weight(cell, net, name, line, label, checks)
-            if checked is not None:
-                values[(row[0], label)] = checked
+    n = len(col_labels)
+    cells = np.empty((len(row_labels), n), dtype=object)  # rows in file order, columns in header order
+    for j, column in enumerate(table.columns[1:]):
+        cells[:, j] = column
+    flat = cells.ravel()
+    valid, numbers = _numbers(flat, net.decimal)
+    blank = flat == ""
+    with np.errstate(invalid="ignore"):
+        refused = ~blank & (~valid | ~np.isfinite(numbers) | (numbers < 0))
+    for k in np.flatnonzero(refused):  # row by row, as the file reads
+        i, j = divmod(int(k), n)
+        _check_weight(str(flat[k]), net, name, int(table.lines[i]), col_labels[j], checks)
     checks.raise_if_errors()
+    values = np.where(blank, 0.0, numbers).reshape(len(row_labels), n)
+    position = {label: j for j, label in enumerate(col_labels)}
+    row_position = np.array([position[label] for label in row_labels], dtype=np.int64)
     if not net.directed:
-        for row_label in row_labels:  # file order, so the first asymmetric cell is named
-            for col_label in col_labels:
-                a, b = values[(row_label, col_label)], values[(col_label, row_label)]
-                if a != b:
-                    raise DataError(Finding(
-                        "error", name, f"the network is undirected but the matrix is not symmetric: "
-                        f"row {row_label!r} column {col_label!r} holds {a:g}, row {col_label!r} "
-                        f"column {row_label!r} holds {b:g}", line=line_of[row_label],
-                        column=col_label, value=f"{a:g}"))
-    weighted = any(v not in (0.0, 1.0) for v in values.values())
-    ties = [
-        _RawTie(src, dst, value, line_of[src])
-        for (src, dst), value in values.items()
-        if value != 0 and (net.directed or natural_key(src) <= natural_key(dst))  # one of each pair
-    ]
+        # values[i, j] is row label i to column label j; the mirror cell is row label j's row
+        # at the column of row label i.
+        mirror = values[np.argsort(row_position)][:, row_position].T
+        asymmetric = np.flatnonzero((values != mirror).ravel())
+        if len(asymmetric):
+            i, j = divmod(int(asymmetric[0]), n)
+            a, b = values[i, j], mirror[i, j]
+            row_label, col_label = row_labels[i], col_labels[j]
+            raise DataError(Finding(
+                "error", name, f"the network is undirected but the matrix is not symmetric: "
+                f"row {row_label!r} column {col_label!r} holds {a:g}, row {col_label!r} "
+                f"column {row_label!r} holds {b:g}", line=int(table.lines[i]),
+                column=col_label, value=f"{a:g}"))
+    weighted = bool(((values != 0.0) & (values != 1.0)).any())
+    keep = values != 0
+    if not net.directed:  # one of each pair: the cell whose row label comes first in node order
+        rank = np.empty(n, dtype=np.int64)
+        rank[sorted(range(n), key=lambda j: natural_key(col_labels[j]))] = np.arange(n)
+        keep &= rank[row_position][:, None] <= rank[None, :]
+    rows, cols = np.nonzero(keep)  # row-major: the file's order
+    labels = np.empty(n, dtype=object)
+    labels[:] = col_labels
+    ties = _Ties(labels[row_position[rows]], labels[cols], values[rows, cols],
+                 table.lines[rows].astype(np.int64))
     return ties, row_labels, weighted
 
 
@@ -376,89 +482,127 @@ def _combine_rule(net: NetworkConfig) -> str:
     return net.duplicates
 
 
-def _mirrored_listing(kept: list[_RawTie], net: NetworkConfig, name: str, order: dict[str, int],
-                      weighted: bool, checks: DataChecks) -> list[_RawTie]:
+def _plural(unit: str, count: int) -> str:
+    return unit if count == 1 else unit + "s"
+
+
+def _mirrored_listing(kept: np.ndarray, a: np.ndarray, b: np.ndarray, ties: _Ties,
+                      net: NetworkConfig, name: str, weighted: bool, checks: DataChecks
+                      ) -> np.ndarray:
     """Undirected ties that many tools export twice (a,b and b,a with the same weight).
 
     When every pair is listed exactly so, each pair is read as one tie; summing both rows would
     double every strength. When only some pairs are, ``duplicates`` applies and a warning counts
-    them."""
-    groups: dict[tuple[int, int], list[_RawTie]] = {}
-    for tie in kept:
-        a, b = order[tie.source], order[tie.target]
-        groups.setdefault((min(a, b), max(a, b)), []).append(tie)
-    both = [g for g in groups.values() if len({order[t.source] < order[t.target] for t in g}) == 2]
-    if not both:
+    them. ``kept`` are the positions of the ties (no self-loops), ``a`` and ``b`` their nodes'
+    places in node order; returns the positions to keep."""
+    if not len(kept):
         return kept
-    mirrored = all(len(g) == 2 and g[0].source == g[1].target and g[0].weight == g[1].weight
-                   for g in groups.values())
+    low, high = np.minimum(a, b), np.maximum(a, b)
+    group, pairs = pd.factorize(low * (int(max(a.max(), b.max())) + 1) + high)
+    count = np.bincount(group, minlength=len(pairs))
+    forward = np.bincount(group[a < b], minlength=len(pairs))
+    both = (forward > 0) & (forward < count)
+    if not both.any():
+        return kept
+    unit = ties.unit
+    lines = ties.line[kept]
+    if (count == 2).all() and both.all():
+        ordered = np.argsort(group, kind="stable")  # the two ties of each pair side by side
+        weights = ties.weight[kept][ordered]
+        mirrored = bool((weights[0::2] == weights[1::2]).all())
+    else:
+        mirrored = False
     if mirrored:
-        first = min(min(t.line for t in g) for g in groups.values())
         checks.add(Finding(
             "fix", name, f"every tie is listed twice, once in each direction and with the same "
-            f"weight ({count_of(len(groups), 'pair', 'pairs')}), as many tools export undirected "
+            f"weight ({count_of(len(pairs), 'pair', 'pairs')}), as many tools export undirected "
             "networks; each pair was read as one tie, so strengths are not doubled",
-            line=first, count=len(groups)))
-        return [min(g, key=lambda t: t.line) for g in groups.values()]
+            line=int(lines.min()), count=len(pairs), unit=unit))
+        first = np.unique(group, return_index=True)[1]  # ties are in file order
+        return kept[np.sort(first)]
     if weighted:
-        example = min(both, key=lambda g: min(t.line for t in g))
-        one, other = sorted(example, key=lambda t: t.line)[:2]
+        example = int(group[np.flatnonzero(both[group])[0]])
+        one, other = kept[np.flatnonzero(group == example)[:2]]
         checks.add(Finding(
-            "warning", name, f"{count_of(len(both), 'pair is', 'pairs are')} listed in both "
-            f"directions (such as {one.source!r},{one.target!r} on line {one.line} and "
-            f"{other.source!r},{other.target!r} on line {other.line}) but not every pair is; in "
-            f"this undirected network both rows are one tie, so their weights were combined by "
-            f"{_combine_rule(net)}. If the file lists some ties twice by mistake, remove one row "
-            "of each", line=one.line, count=len(both)))
+            "warning", name, f"{count_of(int(both.sum()), 'pair is', 'pairs are')} listed in both "
+            f"directions (such as {ties.source[one]!r},{ties.target[one]!r} on {unit} "
+            f"{ties.line[one]} and {ties.source[other]!r},{ties.target[other]!r} on {unit} "
+            f"{ties.line[other]}) but not every pair is; in this undirected network both rows "
+            f"are one tie, so their weights were combined by {_combine_rule(net)}. If the file "
+            "lists some ties twice by mistake, remove one row of each", line=int(ties.line[one]),
+            count=int(both.sum()), unit=unit))
     return kept
 
 
-def _clean_ties(ties: list[_RawTie], net: NetworkConfig, name: str, order: dict[str, int],
-                weighted: bool, checks: DataChecks) -> pd.DataFrame:
-    loops = [t for t in ties if t.source == t.target]
-    if loops:
+def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkConfig, name: str,
+                order: list[str], weighted: bool, checks: DataChecks
+                ) -> tuple[pd.DataFrame, np.ndarray]:
+    """The edges frame, and for every node (in ``order``) whether a tie touches it. ``a_all``
+    and ``b_all`` are the places in ``order`` of each tie's source and target."""
+    unit = ties.unit
+    loops = np.flatnonzero(a_all == b_all)
+    if len(loops):
+        lines = ties.line[loops].tolist()
         checks.add(Finding("fix", name, f"{count_of(len(loops), 'self-loop')} removed (a tie "
-                           f"from a node to itself) on {'line' if len(loops) == 1 else 'lines'} "
-                           f"{_lines([t.line for t in loops])}",
-                           line=loops[0].line if len(loops) == 1 else None,
-                           value=loops[0].source, count=len(loops)))
-    kept = [t for t in ties if t.source != t.target]
+                           f"from a node to itself) on {_plural(unit, len(loops))} "
+                           f"{_lines(lines)}", line=lines[0] if len(loops) == 1 else None,
+                           value=ties.source[loops[0]], count=len(loops), unit=unit))
+    kept = np.flatnonzero(a_all != b_all)
     if not net.directed:
-        kept = _mirrored_listing(kept, net, name, order, weighted, checks)
-
-    def key(t: _RawTie) -> tuple[int, int]:
-        a, b = order[t.source], order[t.target]
-        return (a, b) if net.directed or a <= b else (b, a)
-
-    frame = pd.DataFrame({
-        "a": [key(t)[0] for t in kept], "b": [key(t)[1] for t in kept],
-        "weight": [t.weight for t in kept], "line": [t.line for t in kept],
-    })
-    # Sort before combining so sums do not depend on the order of rows in the file.
-    frame = frame.sort_values(["a", "b", "weight", "line"], kind="mergesort")
-    repeated = frame[frame.duplicated(["a", "b"], keep=False)]
+        kept = _mirrored_listing(kept, a_all[kept], b_all[kept], ties, net, name, weighted,
+                                 checks)
+    a, b = a_all[kept], b_all[kept]
+    if not net.directed:
+        a, b = np.minimum(a, b), np.maximum(a, b)
+    # Sort before combining so sums do not depend on the order of rows in the file: by pair,
+    # weight and line. The ties are in file order and both sorts are stable; only pairs listed
+    # more than once need the second.
+    weight, line = ties.weight[kept], ties.line[kept]
+    pair = a.astype(np.int64) * max(len(order), 1) + b
+    ordered = np.argsort(pair, kind="stable")
+    same = pair[ordered][1:] == pair[ordered][:-1]  # a row and the next are one pair
+    repeat = np.zeros(len(pair), dtype=bool)
+    repeat[1:] |= same
+    repeat[:-1] |= same
+    if repeat.any():
+        group = ordered[repeat]
+        ordered[repeat] = group[np.lexsort((weight[group], pair[group]))]
+    frame = pd.DataFrame({"a": a[ordered], "b": b[ordered], "weight": weight[ordered],
+                          "line": line[ordered]}, index=ordered)
+    repeated = frame[repeat]
     if len(repeated):
         extra = len(repeated) - repeated[["a", "b"]].drop_duplicates().shape[0]
         how = f"weights combined by {_combine_rule(net)}" if weighted else "kept once"
         what = "ties" if net.directed else "ties (either direction, as the network is undirected)"
         lines = sorted(repeated["line"].tolist())
-        checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; lines "
-                           f"{_lines(lines)}", line=lines[0], count=extra))
-    merged = frame.groupby(["a", "b"], sort=True)["weight"].agg(_COMBINE[net.duplicates]).reset_index()
-    if weighted and len(repeated) and net.duplicates == "sum" and net.weight_means == "distance":
-        exact = repeated.groupby(["a", "b"], sort=True)["weight"].agg(_combine_distances)
-        merged = merged.set_index(["a", "b"])
-        merged.loc[exact.index, "weight"] = exact
-        merged = merged.reset_index()
-    names = sorted(order, key=order.__getitem__)
+        checks.add(Finding("fix", name, f"{extra} repeated {what} merged, {how}; {unit}s "
+                           f"{_lines(lines)}", line=lines[0], count=extra, unit=unit))
+    # One row per pair: its first row, with the combined weight where the pair is repeated (a
+    # pair listed once keeps its weight, which is its sum, mean and max).
+    first = np.ones(len(pair), dtype=bool)
+    first[1:] = ~same
+    merged = frame.loc[first, ["a", "b", "weight"]].reset_index(drop=True)
+    if len(repeated):
+        if weighted and net.duplicates == "sum" and net.weight_means == "distance":
+            combined = repeated.groupby(["a", "b"], sort=True)["weight"].agg(_combine_distances)
+        else:
+            combined = repeated.groupby(["a", "b"], sort=True)["weight"].agg(
+                _COMBINE[net.duplicates])
+        merged.loc[repeat[first], "weight"] = combined.to_numpy(dtype=np.float64)
+    names = pd.array(order, dtype=str)
+    sources = merged["a"].to_numpy(dtype=np.int64)
+    targets = merged["b"].to_numpy(dtype=np.int64)
     edges = pd.DataFrame({
-        "source": pd.Series([names[i] for i in merged["a"]], dtype=str),
-        "target": pd.Series([names[i] for i in merged["b"]], dtype=str),
+        "source": pd.Series(names.take(sources)),
+        "target": pd.Series(names.take(targets)),
     })
     if weighted:
         edges["weight"] = merged["weight"].astype(float).to_numpy()
+    touched = np.zeros(len(order), dtype=bool)
+    touched[sources] = True
+    touched[targets] = True
     result: pd.DataFrame = edges
-    return result
+    return result, touched
 
 
 # Survey tools put extra header rows (the question text, an import code such as
@@ -467,8 +611,8 @@ HEADER_LIKE_ROWS = 3
 _IMPORT_CODE = re.compile(r'^\{\s*"[^"]*"\s*:.*\}$')
 
 
-def _span(first: int, last: int) -> str:
-    return f"line {first}" if first == last else f"lines {first}-{last}"
+def _span(first: int, last: int, unit: str = "line") -> str:
+    return f"{unit} {first}" if first == last else f"{unit}s {first}-{last}"
 
 
 def _header_like(frame: pd.DataFrame, node: str, tie_ids: set[str], decimal: str,
@@ -485,15 +629,17 @@ def _header_like(frame: pd.DataFrame, node: str, tie_ids: set[str], decimal: str
         value = str(row[column])
         if column in skip or not value or _number(value, decimal) is not None:
             continue
-        others = [v for v in rest[column] if v]
-        if len(others) >= 3 and all(_number(v, decimal) is not None for v in others):
+        values = rest[column].to_numpy(dtype=object)
+        others = values[values != ""]
+        if len(others) >= 3 and _numbers(others, decimal)[0].all():
             return (f"its id {node!r} appears in no tie and column {column!r} holds {value!r} "
                     "where the other rows hold numbers")
     return None
 
 
 def _refuse_extra_header_rows(frame: pd.DataFrame, lines: dict[str, int], tie_ids: set[str],
-                              net: NetworkConfig, name: str, checks: DataChecks) -> None:
+                              net: NetworkConfig, name: str, checks: DataChecks,
+                              unit: str = "line") -> None:
     head = list(frame.index[:HEADER_LIKE_ROWS])
     skip = {net.label} if net.label else set()
     reasons = {node: _header_like(frame, node, tie_ids, net.decimal, skip) for node in head}
@@ -504,20 +650,25 @@ def _refuse_extra_header_rows(frame: pd.DataFrame, lines: dict[str, int], tie_id
     # Rows above a flagged one that name no tie belong to the same block of extra headers.
     block = [node for node in head[:last + 1] if node not in tie_ids or reasons[node]]
     first_line, last_line = lines[block[0]], lines[block[-1]]
-    where = _span(first_line, last_line)
+    where = _span(first_line, last_line, unit)
     reason = reasons[flagged[0]]
     checks.add(Finding(
-        "error", name, f"line {lines[flagged[0]]} does not look like a node: {reason}. Survey "
+        "error", name, f"{unit} {lines[flagged[0]]} does not look like a node: {reason}. Survey "
         "tools often export extra header rows (question text, import codes) under the column "
-        f"names; delete {where} and build again", line=lines[flagged[0]], value=flagged[0]))
+        f"names; delete {where} and build again", line=lines[flagged[0]], value=flagged[0],
+        unit=unit))
     checks.raise_if_errors()
 
 
 def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) -> None:
     """'a' and 'A' are two nodes; say so, since a person typed two ways is a common slip."""
+    folded = [node.casefold() for node in ids]
+    clashing = np.flatnonzero(pd.Series(folded, dtype=object).duplicated(keep=False).to_numpy())
+    if not len(clashing):
+        return
     groups: dict[str, list[str]] = {}
-    for node in ids:
-        groups.setdefault(node.casefold(), []).append(node)
+    for i in clashing.tolist():  # only the ids that share their folded form, in order
+        groups.setdefault(folded[i], []).append(ids[i])
     clashes = [g for g in groups.values() if len(g) > 1]
     if not clashes:
         return
@@ -535,45 +686,58 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     data_name = study.relative(net.data_file)
     node_frame = None
     node_lines: dict[str, int] = {}
+    node_unit = "line"
     nodes_name = study.relative(net.nodes) if net.nodes is not None else data_name
     if net.nodes is not None:
-        node_frame, node_lines = _read_node_list(net, net.nodes, nodes_name, checks)
+        node_frame, node_lines, node_unit = _read_node_list(net, net.nodes, nodes_name, checks)
+    row_labels: list[str] = []
     if isinstance(net.data, EdgeListSource):
         ties = _read_edge_list(net, net.data, data_name, checks)
         weighted = net.data.weight is not None
-        listed = [t.source for t in ties] + [t.target for t in ties]
     else:
-        ties, listed, weighted = _read_matrix(net, net.data, data_name, checks)
+        ties, row_labels, weighted = _read_matrix(net, net.data, data_name, checks)
     checks.raise_if_errors()
+    # Every tie end as a code into ``named`` (sources and targets interleaved, in file order).
+    ends = np.empty(2 * len(ties), dtype=object)
+    ends[0::2], ends[1::2] = ties.source, ties.target
+    codes, named = pd.factorize(ends)
+    listed = set(named.tolist()) | set(row_labels)  # a matrix lists nodes with no ties too
     if node_frame is not None:
-        _refuse_extra_header_rows(node_frame, node_lines, set(listed), net, nodes_name, checks)
-    if not ties and node_frame is None:
+        _refuse_extra_header_rows(node_frame, node_lines, listed, net, nodes_name, checks,
+                                  node_unit)
+    if not len(ties) and node_frame is None:
         raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
                                 "the network would be empty"))
 
-    known = set(node_frame.index) if node_frame is not None else set()
-    unknown: dict[str, int] = {}
-    for tie in ties:
-        for node in (tie.source, tie.target):
-            if node_frame is not None and node not in known and node not in unknown:
-                unknown[node] = tie.line
-    if len(unknown) == 1:
-        ((node, line),) = unknown.items()
-        checks.add(Finding("fix", data_name, f"node {node!r} appears in ties but not in the node "
-                           f"list {nodes_name}; added with no attributes",
-                           line=line, value=node))
-    elif unknown:
-        first = list(unknown.items())[:MAX_LINES_LISTED]
-        shown = ", ".join(f"{n!r} (line {line})" for n, line in first)
-        checks.add(Finding("fix", data_name, f"{len(unknown)} nodes appear in ties but not in the "
-                           f"node list {nodes_name}; added with no attributes: "
-                           f"{shown}", value=next(iter(unknown)), count=len(unknown)))
+    known = node_frame.index if node_frame is not None else pd.Index([], dtype=object)
+    if node_frame is not None:
+        # Each node missing from the node list, with the line of the tie naming it first. Codes
+        # are given in order of first appearance, so a code's first place is where the running
+        # maximum of the codes reaches it.
+        first_place = np.flatnonzero(np.diff(np.maximum.accumulate(codes), prepend=-1) > 0)
+        missing = np.flatnonzero(known.get_indexer(pd.Index(named, dtype=object)) == -1)
+        unknown = dict(zip(named[missing].tolist(),
+                           ties.line[first_place[missing] // 2].tolist()))
+        unit = ties.unit
+        if len(unknown) == 1:
+            ((node, line),) = unknown.items()
+            checks.add(Finding("fix", data_name, f"node {node!r} appears in ties but not in the "
+                               f"node list {nodes_name}; added with no attributes",
+                               line=line, value=str(node), unit=unit))
+        elif unknown:
+            shown = ", ".join(f"{n!r} ({unit} {line})"
+                              for n, line in list(unknown.items())[:MAX_LINES_LISTED])
+            checks.add(Finding("fix", data_name, f"{len(unknown)} nodes appear in ties but not "
+                               f"in the node list {nodes_name}; added with no attributes: "
+                               f"{shown}", value=str(next(iter(unknown))), count=len(unknown),
+                               unit=unit))
 
-    all_ids = sorted(known | set(listed), key=natural_key)
+    all_ids = natural_order(list(set(known.tolist()) | listed))
     _warn_ids_equal_but_for_case(all_ids, study.relative(net.nodes) if net.nodes else data_name,
                                  checks)
-    order = {node: i for i, node in enumerate(all_ids)}
-    edges = _clean_ties(ties, net, data_name, order, weighted, checks)
+    place = pd.Index(all_ids, dtype=object).get_indexer(pd.Index(named, dtype=object))[codes]
+    edges, touched = _clean_ties(ties, place[0::2], place[1::2], net, data_name, all_ids,
+                                 weighted, checks)
 
     if node_frame is None:
         node_frame = pd.DataFrame(index=pd.Index(all_ids, name="id"))
@@ -586,7 +750,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     attrs = _typed_attributes(node_frame, net.decimal)
     if net.categorical or net.numeric:
         attrs = _declared_types(attrs, node_frame, net, nodes_name, node_lines, label_column,
-                                checks)
+                                checks, node_unit)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
     if label_column == net.node_id:
         labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
@@ -598,8 +762,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     attribute_names = tuple(c for c in attrs.columns if c != label_column)
     nodes = pd.concat([labels.rename("label"), attrs[list(attribute_names)]], axis=1)
 
-    touched = set(edges["source"]) | set(edges["target"])
-    isolates = [n for n in all_ids if n not in touched]
+    isolates = [all_ids[i] for i in np.flatnonzero(~touched)]
     if isolates:
         checks.add(Finding("note", data_name, f"{count_of(len(isolates), 'isolate')} with no "
                            f"ties, kept in the network: {', '.join(isolates[:MAX_LINES_LISTED])}",

@@ -77,9 +77,10 @@ def typed_mode_attributes(network: TwoModeNetwork, mode: str | None) -> pd.DataF
 
 
 def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
-                ) -> tuple[list[str], list[tuple[str | None, str, int, tuple[str, ...]]], bool]:
-    """The node list's header and its rows as (mode or None, id, line, row)."""
-    table = read_table(path, name, delimiter=net.delimiter)
+                ) -> tuple[list[str], list[tuple[str | None, str, int, tuple[str, ...]]], bool, str]:
+    """The node list's header, its rows as (mode or None, id, line, row), whether it has a mode
+    column, and whether it counts lines or (Parquet) rows."""
+    table = read_table(path, name, delimiter=net.delimiter, decimal=net.decimal)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
     if net.label is not None and net.label != net.node_id:
@@ -90,28 +91,29 @@ def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
     id_col = table.column(net.node_id)
     mode_col = table.column(MODE_COLUMN) if has_mode else None
     rows = []
+    unit = table.unit
     first_line: dict[tuple[str | None, str], int] = {}
-    for row, line in zip(table.rows, table.lines):
+    for row, line in zip(table.rows, table.lines.tolist()):
         node = row[id_col]
         mode = row[mode_col] if mode_col is not None else None
         if mode is not None and mode not in net.modes:
             checks.add(Finding("error", name, f"mode must be {net.modes[0]!r} or {net.modes[1]!r} "
                                "(the modes study.toml names)", line=line, column=MODE_COLUMN,
-                               value=mode))
+                               value=mode, unit=unit))
             continue
         if node == "":
             checks.add(Finding("error", name, "a node has an empty id", line=line,
-                               column=net.node_id))
+                               column=net.node_id, unit=unit))
         elif (mode, node) in first_line:
             where = f" as a {mode}" if mode else ""
-            checks.add(Finding("error", name, f"node id is repeated{where} (first on line "
+            checks.add(Finding("error", name, f"node id is repeated{where} (first on {unit} "
                                f"{first_line[(mode, node)]})", line=line, column=net.node_id,
-                               value=node))
+                               value=node, unit=unit))
         else:
             first_line[(mode, node)] = line
             rows.append((mode, node, line, row))
     checks.raise_if_errors()
-    return list(table.header), rows, has_mode
+    return list(table.header), rows, has_mode, unit
 
 
 def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks: DataChecks
@@ -136,7 +138,7 @@ def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks:
     rows: list[tuple[str, int]] = []
     row_line: dict[str, int] = {}
     ties: list[_RawTie] = []
-    for row, line in zip(table.rows, table.lines):
+    for row, line in zip(table.rows, table.lines.tolist()):
         label = row[0]
         if label == "":
             checks.add(Finding("error", name, "a row has no id in the first column", line=line,
@@ -168,10 +170,11 @@ def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks:
 
 def _refuse_wrong_side(ties: list[_RawTie], declared: dict[NodeKey, int], net: NetworkConfig,
                        data_name: str, nodes_name: str, columns: tuple[str, str],
-                       checks: DataChecks) -> None:
+                       checks: DataChecks, units: tuple[str, str] = ("line", "line")) -> None:
     """With a ``mode`` column in the node list, an id listed only as one mode may not appear in
     the other mode's column."""
     first, second = net.modes
+    node_unit, tie_unit = units
     reported: set[NodeKey] = set()
     for tie in ties:
         for mode, other, node, column in ((first, second, tie.source, columns[0]),
@@ -184,13 +187,14 @@ def _refuse_wrong_side(ties: list[_RawTie], declared: dict[NodeKey, int], net: N
             in_header = column == "header row"  # an incidence matrix's column id
             checks.add(Finding(
                 "error", data_name, f"node {node!r} is listed as a {other} in {nodes_name} "
-                f"(line {declared[(other, node)]}) but appears in the {mode} column; in a "
+                f"({node_unit} {declared[(other, node)]}) but appears in the {mode} column; in a "
                 f"two-mode network the {column!r} column holds {mode} nodes only"
                 if not in_header else
-                f"node {node!r} is listed as a {other} in {nodes_name} (line "
+                f"node {node!r} is listed as a {other} in {nodes_name} ({node_unit} "
                 f"{declared[(other, node)]}) but names a column of the incidence matrix, whose "
                 f"columns are {mode} nodes", line=1 if in_header else tie.line,
-                column=node if in_header else column, value=node))
+                column=node if in_header else column, value=node,
+                unit="line" if in_header else tie_unit))
 
 
 def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
@@ -202,12 +206,14 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
     header: list[str] = []
     node_rows: list[tuple[str | None, str, int, tuple[str, ...]]] = []
     has_mode = False
+    node_unit = tie_unit = "line"
     if net.nodes is not None:
-        header, node_rows, has_mode = _read_nodes(net, net.nodes, nodes_name, checks)
+        header, node_rows, has_mode, node_unit = _read_nodes(net, net.nodes, nodes_name, checks)
     matrix_rows: list[tuple[str, int]] = []
     matrix_columns: list[str] = []
     if isinstance(net.data, EdgeListSource):
-        ties = _read_edge_list(net, net.data, data_name, checks)
+        read = _read_edge_list(net, net.data, data_name, checks)
+        ties, tie_unit = read.raw(), read.unit
         weighted = net.data.weight is not None
         columns = (net.data.source, net.data.target)
     else:
@@ -222,7 +228,8 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
     declared: dict[NodeKey, int] = {}
     if has_mode:
         declared = {(str(mode), node): line for mode, node, line, _ in node_rows}
-        _refuse_wrong_side(ties, declared, net, data_name, nodes_name, columns, checks)
+        _refuse_wrong_side(ties, declared, net, data_name, nodes_name, columns, checks,
+                           (node_unit, tie_unit))
         checks.raise_if_errors()
 
     in_ties = {first: {t.source for t in ties} | {r for r, _ in matrix_rows},
@@ -241,12 +248,13 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
         if not placed:
             unplaced.append((node, line))
     if unplaced:
-        shown = ", ".join(f"{n!r} (line {line})" for n, line in unplaced[:MAX_LINES_LISTED])
+        shown = ", ".join(f"{n!r} ({node_unit} {line})"
+                          for n, line in unplaced[:MAX_LINES_LISTED])
         checks.add(Finding(
             "warning", nodes_name, f"{count_of(len(unplaced), 'listed node')} appear in no tie, "
             f"and the node list has no {MODE_COLUMN!r} column to say whether each is a {first} "
             f"or a {second}; left out: {shown}. Add a {MODE_COLUMN!r} column to keep them",
-            line=unplaced[0][1], value=unplaced[0][0], count=len(unplaced)))
+            line=unplaced[0][1], value=unplaced[0][0], count=len(unplaced), unit=node_unit))
     if net.nodes is not None:
         unknown = sorted((k for k in keys if k not in attribute_rows),
                          key=lambda k: (k[0] != first, natural_key(k[1])))
@@ -283,7 +291,7 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
         records.append({"mode": key[0], "id": key[1], "label": label or key[1], **values})
     nodes = pd.DataFrame(records, columns=["mode", "id", "label", *renamed]).astype("string")
 
-    edges = _combine(ties, net, data_name, weighted, checks)
+    edges = _combine(ties, net, data_name, weighted, checks, tie_unit)
     touched = ({(first, s) for s in edges["first"]} | {(second, t) for t in edges["second"]})
     isolates = [k for k in ordered if k not in touched]
     if isolates:
@@ -312,7 +320,7 @@ def _renamed_attributes(names: list[str], header: list[str], nodes_name: str,
 
 
 def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
-             checks: DataChecks) -> pd.DataFrame:
+             checks: DataChecks, unit: str = "line") -> pd.DataFrame:
     """One row per (first, second) pair, repeated ties combined by ``duplicates``."""
     groups: dict[tuple[str, str], list[_RawTie]] = {}
     for tie in ties:
@@ -324,8 +332,8 @@ def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
         how = f"weights combined by {net.duplicates}" if weighted else "kept once"
         shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
         checks.add(Finding("fix", name,
-                           f"{count_of(extra, 'repeated tie')} merged, {how}; lines {shown}",
-                           line=lines[0], count=extra))
+                           f"{count_of(extra, 'repeated tie')} merged, {how}; {unit}s {shown}",
+                           line=lines[0], count=extra, unit=unit))
     pairs = sorted(groups, key=lambda p: (natural_key(p[0]), natural_key(p[1])))
     frame = pd.DataFrame({"first": pd.Series([p[0] for p in pairs], dtype=str),
                           "second": pd.Series([p[1] for p in pairs], dtype=str)})
