@@ -91,11 +91,15 @@ def test_every_documented_key_is_read(tmp_path):
         "Advice, wave 1", root / "data/staff.csv", "name", True, "times")
     assert (n.weight_means, n.duplicates, n.series, n.wave) == ("distance", "max", "advice", 1)
     assert (n.color_by, n.size_by) == ("community", "pagerank")
-    assert study.communities == CommunitiesConfig(method="louvain", resolution=2.0, runs=5,
-                                                  perturbations=7, perturb_share=0.25)
+    assert study.communities == CommunitiesConfig(
+        method="louvain", resolution=2.0, runs=5, perturbations=7, perturb_share=0.25,
+        chosen=frozenset({"method", "resolution", "runs", "perturbations", "perturb_share"}))
     assert isinstance(study.communities.resolution, float)
     assert study.significance.null_samples == 0
-    assert study.measures == MeasuresConfig(exact_paths_up_to=100, path_sample_sources=10)
+    assert study.measures == MeasuresConfig(
+        exact_paths_up_to=100, path_sample_sources=10,
+        chosen=frozenset({"exact_paths_up_to", "path_sample_sources"}))
+    assert study.significance.chosen == frozenset({"null_samples"})
     assert study.sharing == SharingConfig(pseudonymize=False, drop=("name",), min_group=3)
     assert study.site == SiteConfig(theme="plain", allow_html=True)
     assert study.build == BuildConfig(cluster="tcp://127.0.0.1:8786")

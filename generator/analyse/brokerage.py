@@ -59,8 +59,9 @@ def burt_brokerage(undirected: ig.Graph, *, weighted: bool) -> tuple[list[float]
         indirect += np.bincount(arc(i, j), weights=p_iq * share[arc(q, j)], minlength=len(codes))
         redundancy += np.bincount(i, weights=p_iq * of_max[arc(j, q)], minlength=n)
     degree = np.bincount(src, minlength=n).astype(float)
-    constraint = np.bincount(src, weights=(share + indirect) ** 2, minlength=n)
-    effective = degree - redundancy
+    # float even with no ties at all (bincount of nothing gives whole numbers)
+    constraint = np.bincount(src, weights=(share + indirect) ** 2, minlength=n).astype(float)
+    effective = (degree - redundancy).astype(float)
     alone = degree == 0
     constraint[alone] = np.nan
     effective[alone] = np.nan

@@ -8,9 +8,10 @@ its peak memory is its own:
 (a) ``netfolio build`` of a study holding it, stage by stage;
 (b) the same measure set by bare igraph calls: pandas reads the CSVs, the graph is built, then
     degrees, strengths, betweenness and distances from the same number of sampled sources (or all
-    nodes at or below ``exact_paths_up_to``), PageRank, eigenvector centrality when it applies,
-    coreness, local clustering, Burt's constraint, the network statistics, the same number of
-    Leiden runs, and Fruchterman-Reingold with the same iteration budget;
+    nodes at or below ``exact_paths_up_to``; the count netfolio's size budget gives), PageRank,
+    eigenvector centrality when it applies, coreness, local clustering, Burt's constraint, the
+    network statistics, the same number of Leiden runs, and Fruchterman-Reingold with the same
+    iteration budget;
 (c) networkx for the same, where it finishes within NETWORKX_LIMIT seconds.
 
 The study sets ``[communities] perturbations = 0`` and ``[significance] null_samples = 0`` (the
@@ -40,7 +41,6 @@ HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))  # tests/, for synthetic.py
 
 SIZES = (10_000, 100_000, 1_000_000)
-RUNS = 20  # Leiden runs, as the default study
 NETWORKX_LIMIT = 600.0
 MAX_RATIO = 1.5
 MIN_NETWORKX_SPEEDUP = 10.0
@@ -60,12 +60,23 @@ def _netfolio(folder: Path) -> dict[str, float]:
     return stages
 
 
-def _sources(n: int) -> list[int] | None:
-    from generator.config import DEFAULT_EXACT_PATHS_UP_TO, DEFAULT_PATH_SAMPLE_SOURCES
+def _settings(ties: int) -> tuple[int, int]:
+    """The community runs and sampled path sources netfolio uses for this many ties (the
+    defaults, scaled for size as a build scales them), so the bare runs do the same work."""
+    from generator.analyse.budget import path_sources, scaled_for_size
+    from generator.config import CommunitiesConfig, MeasuresConfig, SignificanceConfig
+
+    communities, _, _ = scaled_for_size(CommunitiesConfig(), SignificanceConfig(), ties)
+    measures, _ = path_sources(MeasuresConfig(), ties)
+    return communities.runs, measures.path_sample_sources
+
+
+def _sources(n: int, ties: int) -> list[int] | None:
+    from generator.config import DEFAULT_EXACT_PATHS_UP_TO
 
     if n <= DEFAULT_EXACT_PATHS_UP_TO:
         return None
-    return sorted(random.Random(1).sample(range(n), min(DEFAULT_PATH_SAMPLE_SOURCES, n)))
+    return sorted(random.Random(1).sample(range(n), min(_settings(ties)[1], n)))
 
 
 def _bare_igraph(folder: Path) -> dict[str, float]:
@@ -92,7 +103,7 @@ def _bare_igraph(folder: Path) -> dict[str, float]:
     length = [1.0 / w for w in strength]
     lap("graph")
     n = graph.vcount()
-    sources = _sources(n)
+    sources = _sources(n, graph.ecount())
     measures = [graph.degree(mode=m) for m in ("all", "in", "out")]
     measures += [graph.strength(mode=m, weights=strength) for m in ("all", "in", "out")]
     measures.append(graph.betweenness(weights=length, sources=sources))
@@ -114,7 +125,7 @@ def _bare_igraph(folder: Path) -> dict[str, float]:
                   graph.assortativity(graph.outdegree(), graph.indegree())]
     lap("statistics")
     random.seed(1)
-    for _ in range(RUNS):
+    for _ in range(_settings(graph.ecount())[0]):
         undirected.community_leiden(objective_function="modularity", weights="weight",
                                     n_iterations=-1)
     lap("communities")
@@ -153,7 +164,7 @@ def _networkx(folder: Path) -> dict[str, float]:
         data["length"] = 1.0 / data["weight"]
     lap("graph")
     n = graph.number_of_nodes()
-    sources = _sources(n)
+    sources = _sources(n, graph.number_of_edges())
     dict(graph.degree()), dict(graph.in_degree()), dict(graph.out_degree())
     dict(graph.degree(weight="weight"))
     nx.betweenness_centrality(graph, k=None if sources is None else len(sources),
@@ -171,7 +182,7 @@ def _networkx(folder: Path) -> dict[str, float]:
     nx.number_weakly_connected_components(graph), nx.number_strongly_connected_components(graph)
     nx.degree_pearson_correlation_coefficient(graph, x="out", y="in")
     lap("statistics")
-    for run in range(RUNS):
+    for run in range(_settings(graph.number_of_edges())[0]):
         nx.community.louvain_communities(undirected, weight="weight", seed=run)
     lap("communities")
     tied = [v for v in undirected if undirected.degree(v) > 0]
