@@ -537,7 +537,10 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
                           "contain it", key="study.output")
 
     networks_raw = raw.get("network", [])
-    if not isinstance(networks_raw, list) or not networks_raw:
+    if not isinstance(networks_raw, list):
+        raise ConfigError(f"must be written as [[network]] tables, got {_describe(networks_raw)}",
+                          key="network", locate=True)
+    if not networks_raw:
         raise ConfigError("at least one [[network]] table is required", key="network")
     written = tuple(_network(root, data, i) for i, data in enumerate(networks_raw))
     seen: dict[str, int] = {}

@@ -238,6 +238,7 @@ def run_case(case: str, command: str, tmp: Path, zygote: Zygote, good_site: Path
         else:
             site = tmp / "site"
             shutil.copytree(good_site, site)
+            argv += ["--out", str(site)]
         argv += ["--jobs", "1"]
     run = (plain_run if PLAIN else zygote.run)(argv, tmp)
     report = f"{case} {command}: exit {run.rc}\n--- stdout\n{run.stdout}\n--- stderr\n{run.stderr}"
