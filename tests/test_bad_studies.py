@@ -38,13 +38,13 @@ import os
 import shutil
 import subprocess
 import sys
-import tomllib
 from collections.abc import Iterator
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 import pytest
+import tomllib
 
 CORPUS = Path(__file__).parent / "bad_studies"
 CASES = sorted(p.name for p in CORPUS.iterdir() if (p / "expected.toml").is_file())
@@ -234,7 +234,7 @@ def run_case(case: str, command: str, tmp: Path, zygote: Zygote, good_site: Path
     site: Path | None = None
     if command == "build":
         if "out" in want:
-            argv += ["--out", str((study / want["out"]))]
+            argv += ["--out", str(study / want["out"])]
         else:
             site = tmp / "site"
             shutil.copytree(good_site, site)
@@ -257,7 +257,7 @@ def run_case(case: str, command: str, tmp: Path, zygote: Zygote, good_site: Path
     for rel, digest in before.items():
         assert after.get(rel) == digest, f"{rel} changed or went missing\n{report}"
     added = [rel for rel in after if rel not in before
-             and not rel.split("/")[0] in ALLOWED_NEW
+             and rel.split("/")[0] not in ALLOWED_NEW
              and not (want.get("out") and rel.startswith(want["out"].strip("./") + "/"))]
     assert added == [], report
     if outside_before:
