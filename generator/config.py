@@ -495,7 +495,9 @@ def load_study(project: Path | str) -> StudyConfig:
     except UnicodeDecodeError as exc:
         raise ConfigError(f"is not UTF-8 text ({exc.reason} at byte {exc.start})", path=path) from None
     except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"is not valid TOML: {exc}", path=path) from None
+        at = re.search(r"\(at line (\d+), column \d+\)", str(exc))
+        raise ConfigError(f"is not valid TOML: {exc}", path=path,
+                          line=int(at.group(1)) if at else None) from None
     try:
         return _study(root, raw)
     except ConfigError as exc:
