@@ -303,12 +303,22 @@ def build_info_stamp() -> dict[str, str]:
 def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> StudyConfig:
     """Validate config and data without building; pass every finding to ``report``."""
     study = load_study(project)
-    cleaned = _read_all(study, Progress(quiet=True))  # raises with the errors of every network
+    # The errors of every network and of every note are raised together, not the first file's.
+    errors: list[Finding] = []
+    try:
+        cleaned = _read_all(study, Progress(quiet=True))
+    except DataError as exc:
+        errors, cleaned = list(exc.findings), {}
+    try:
+        notes, summary = read_notes(study)
+    except DataError as exc:
+        errors += exc.findings
+    if errors:
+        raise DataError(errors)
     _check_relations(study, list(cleaned.values()))
     for clean in cleaned.values():
         for finding in clean.checks.findings:
             report(finding)
-    notes, summary = read_notes(study)
     for finding in render_notes(study, notes, summary).findings:  # a note too deep fails here
         report(finding)
     load_theme(study).check_templates()  # an unknown or broken theme fails here as in build

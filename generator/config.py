@@ -496,33 +496,44 @@ def load_study(project: Path | str) -> StudyConfig:
     except UnicodeDecodeError as exc:
         raise ConfigError(f"is not UTF-8 text ({exc.reason} at byte {exc.start})", path=path) from None
     except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"is not valid TOML: {exc}", path=path) from None
+        at = re.search(r"\(at line (\d+), column \d+\)", str(exc))
+        raise ConfigError(f"is not valid TOML: {exc}", path=path,
+                          line=int(at.group(1)) if at else None) from None
     try:
         return _study(root, raw)
     except ConfigError as exc:
         exc.path = path
-        if exc.locate and exc.line is None and exc.key:
+        if exc.line is None and exc.key:  # every key set in study.toml is named with its line
             exc.line = _key_line(path.read_text(encoding="utf-8-sig"), exc.key)
         raise
 
 
 def _key_line(text: str, dotted: str) -> int | None:
-    """The line (from 1) of study.toml where ``table.key`` is set, as an editor counts it; None
-    when it cannot be found (a key set in an inline table, say)."""
-    table, _, key = dotted.rpartition(".")
+    """The line (from 1) of study.toml where ``table.key`` is set, as an editor counts it. A
+    dotted name that is a table (``network[2]``), or a key the table lacks (a required one), gives
+    the line of the table's header; None when neither can be found."""
+    whole = re.fullmatch(r"([a-z_]+)\[(\d+)\]", dotted)  # the n-th [[name]] table itself
+    if whole:
+        table, key = dotted, None
+    else:
+        table, _, key = dotted.rpartition(".")
     inside = table == ""
     array = re.fullmatch(r"([a-z_]+)\[(\d+)\]", table)  # the n-th [[name]] table
     seen = 0
+    header: int | None = None
     for number, raw in enumerate(text.splitlines(), start=1):
         line = raw.split("#", 1)[0].strip()
         if line.startswith("[[") and array:
             seen += line.strip("[] ") == array[1]
             inside = line.strip("[] ") == array[1] and seen == int(array[2])
+            header = number if inside else header
         elif line.startswith("["):
             inside = line.strip("[] ") == table
-        elif inside and line.partition("=")[0].strip().strip('"\'') == key and "=" in line:
+            header = number if inside else header
+        elif inside and key is not None and "=" in line and (
+                line.partition("=")[0].strip().strip('"\'') == key):
             return number
-    return None
+    return header
 
 
 def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
@@ -538,7 +549,10 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
                           "contain it", key="study.output")
 
     networks_raw = raw.get("network", [])
-    if not isinstance(networks_raw, list) or not networks_raw:
+    if not isinstance(networks_raw, list):
+        raise ConfigError(f"must be written as [[network]] tables, got {_describe(networks_raw)}",
+                          key="network", locate=True)
+    if not networks_raw:
         raise ConfigError("at least one [[network]] table is required", key="network")
     written = tuple(_network(root, data, i) for i, data in enumerate(networks_raw))
     seen: dict[str, int] = {}

@@ -141,7 +141,11 @@ def test_unknown_key_names_the_dotted_key_and_suggests_the_close_one(tmp_path, w
     assert error.key == dotted
     assert str(error) == f"unknown key '{key}'; {hint}"
     assert error.path == tmp_path.resolve() / "study.toml"
-    assert error.format_message() == f"study.toml: [{dotted}] unknown key '{key}'; {hint}"
+    # The message names the line of study.toml that sets the key, as an editor counts it.
+    lines = (tmp_path / "study.toml").read_text(encoding="utf-8").splitlines()
+    assert error.line is not None and lines[error.line - 1].startswith(f"{key} =")
+    assert error.format_message() == (f"study.toml, line {error.line}: [{dotted}] unknown key "
+                                      f"'{key}'; {hint}")
     assert error.exit_code == 1
 
 
