@@ -29,6 +29,9 @@ DELIMITERS = {",": "','", ";": "';'", "\t": "a tab", "|": "'|'"}
 # is almost always a quote that was never closed, swallowing the rows after it.
 MAX_LINES_PER_VALUE = 10
 PARQUET_SUFFIX = ".parquet"  # files with this suffix are read as Parquet, not CSV
+# The longest value a cell may hold: an id, label or note is far shorter, and a value this long
+# is nearly always a file cut or joined wrongly (Python's csv module holds the same limit).
+MAX_VALUE_LENGTH = 131_072
 
 
 def _text_array(values: Sequence[str]) -> np.ndarray:
@@ -209,8 +212,41 @@ def read_table(path: Path, name: str, *, delimiter: str = ",", row_labels: bool 
                                     "may be Parquet)"))
         return read_parquet_table(path, name, decimal=decimal)
     text = _decode(path.read_bytes(), name)
+    if len(text) > MAX_VALUE_LENGTH:  # no value can be too long in a shorter file
+        _refuse_huge_values(text, name, delimiter)
     fast = _columnar_table(text, name, delimiter, row_labels)
     return fast if fast is not None else _row_table(text, name, delimiter, row_labels)
+
+
+def _refuse_huge_values(text: str, name: str, delimiter: str) -> None:
+    """A line longer than MAX_VALUE_LENGTH may hold a value that long: find it (per line,
+    vectorised) and name its line and column."""
+    lengths = pd.Series(text.split("\n")).str.len().to_numpy()
+    long = np.flatnonzero(lengths > MAX_VALUE_LENGTH)
+    if not len(long):
+        return
+    limit = csv.field_size_limit()
+    csv.field_size_limit(max(limit, len(text) + 1))  # read the long value to report it
+    try:
+        reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+        header: list[str] = []
+        start = 1
+        for record in reader:
+            if not header:
+                header = record
+            for index, value in enumerate(record):
+                if len(value) > MAX_VALUE_LENGTH:
+                    column = header[index] if index < len(header) else f"column {index + 1}"
+                    raise DataError(Finding(
+                        "error", name, f"column '{column}' holds a value of {len(value):,} "
+                        f"characters on line {start} (at most {MAX_VALUE_LENGTH:,}); the file "
+                        "was probably cut or joined wrongly, or a quote is missing",
+                        line=start, column=column, value=value[:40] + "…"))
+            start = reader.line_num + 1
+    except csv.Error:
+        return  # not valid CSV: the readers say where
+    finally:
+        csv.field_size_limit(limit)
 
 
 # ---------------------------------------------------------------------------------------------
