@@ -3,6 +3,7 @@ last site, each exercised with real processes."""
 
 from __future__ import annotations
 
+import errno
 import hashlib
 import json
 import os
@@ -207,11 +208,22 @@ HANGING_BUILD = textwrap.dedent("""
                 time.sleep(600)
             return written
         Path.write_bytes = write_then_hang
-    else:  # between moving the old site aside and moving the new one in
+    elif where == "analysing":  # everything computed, nothing of the site written yet
+        import generator.build
+        real_write_site = generator.build.write_site
+        def hang_then_write(*args, **kwargs):
+            Path(sys.argv[3]).touch()
+            time.sleep(600)
+            return real_write_site(*args, **kwargs)
+        generator.build.write_site = hang_then_write
+    else:  # "renaming": after moving the old site aside (before the new one moves in), or
+           # "swapped": after the new site moved in (before the old copy is removed)
         real_rename = Path.rename
         def rename_then_hang(self, target):
             moved = real_rename(self, target)
-            if Path(target).name == ".output.previous":
+            if where == "renaming" and Path(target).name == ".output.previous":
+                time.sleep(600)
+            if where == "swapped" and self.name.startswith(".output.building-"):
                 time.sleep(600)
             return moved
         Path.rename = rename_then_hang
@@ -266,4 +278,81 @@ def test_a_build_killed_between_the_renames_has_its_last_site_restored(tmp_path:
     assert not (study / ".output.previous").exists() and not (study / LOCK_NAME).exists()
     edges.write_bytes(good)
     build_study(study)
+    assert_one_complete_site(study)
+
+
+def test_a_build_killed_before_it_writes_anything_leaves_the_site_and_a_lock_the_next_takes_over(
+        tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    script = tmp_path / "hang.py"
+    script.write_text(HANGING_BUILD, encoding="utf-8")
+    reached = tmp_path / "reached"
+    process = run_script(script, "analysing", str(study), str(reached))
+    kill_when(process, reached.exists)
+    assert (study / LOCK_NAME).exists()  # held by a process that no longer exists
+    assert sorted(p.name for p in study.glob(".output.*")) == []
+    assert site_bytes(study / "output") == before
+    assert main(["build", str(study), "--quiet"]) == 0  # the stale lock is taken over
+    assert_one_complete_site(study)
+
+
+def test_a_build_killed_just_after_its_swap_leaves_the_new_site_and_an_old_copy_removed_next(
+        tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    script = tmp_path / "hang.py"
+    script.write_text(HANGING_BUILD, encoding="utf-8")
+    process = run_script(script, "swapped", str(study))
+    kill_when(process, lambda: (study / ".output.previous").is_dir()
+              and (study / "output" / MARKER).is_file())
+    assert site_bytes(study / ".output.previous") == before  # the last site, whole
+    manifest = json.loads((study / "output" / "manifest.json").read_text(encoding="utf-8"))
+    found = site_bytes(study / "output")
+    assert {e["path"]: e["sha256"] for e in manifest["files"]} == {
+        path: hashlib.sha256(data).hexdigest() for path, data in found.items()
+        if path != "manifest.json"}  # the new site is whole too
+    build_study(study)
+    assert_one_complete_site(study)
+
+
+# ---------------------------------------------------------------------------------------------
+# A full disk
+
+
+def _full_disk_after(count: int, where: str):
+    """``Path.write_bytes`` that fails as a full disk does once ``count`` files have been
+    written to paths holding ``where``."""
+    real_write = Path.write_bytes
+    written = [0]
+
+    def write_bytes(self: Path, data: bytes) -> int:
+        if where in str(self):
+            if written[0] >= count:
+                raise OSError(errno.ENOSPC, "No space left on device", str(self))
+            written[0] += 1
+        return real_write(self, data)
+
+    return write_bytes
+
+
+@pytest.mark.parametrize("count", [0, 5])
+def test_a_full_disk_while_writing_the_site_exits_1_naming_the_folder_and_keeps_the_last_site(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture,
+        count: int) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    monkeypatch.setattr(Path, "write_bytes", _full_disk_after(count, ".output.building-"))
+    assert main(["build", str(study), "--quiet", "--fresh"]) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and "No space left on device" in err, err
+    assert f"beside {study / 'output'}" in err and "the last site is unchanged" in err, err
+    assert site_bytes(study / "output") == before
+    assert sorted(p.name for p in study.glob(".output.*")) == []  # no half-written site left
+    assert not (study / LOCK_NAME).exists()
+    monkeypatch.undo()
+    build_study(study, fresh=True)
     assert_one_complete_site(study)
