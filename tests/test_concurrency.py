@@ -12,7 +12,9 @@ import socket
 import subprocess
 import sys
 import textwrap
+import threading
 import time
+import zipfile
 from pathlib import Path
 
 import pytest
@@ -356,3 +358,106 @@ def test_a_full_disk_while_writing_the_site_exits_1_naming_the_folder_and_keeps_
     monkeypatch.undo()
     build_study(study, fresh=True)
     assert_one_complete_site(study)
+
+
+# ---------------------------------------------------------------------------------------------
+# build, watch and pack against each other, and an editor saving while they run
+
+
+def start_verb(study: Path, *args: str) -> subprocess.Popen:
+    return subprocess.Popen([sys.executable, "-m", "generator", *args, str(study), "--quiet"],
+                            cwd=REPO, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+
+
+def assert_clean_exit(code: int, err: str) -> None:
+    """0, or 1 with a message: the lock held too long by another verb, or a file caught while
+    the editor was saving it. Never an internal error."""
+    assert code in (0, 1) and "Traceback" not in err, err
+    if code == 1:
+        assert "another netfolio build" in err or "error: " in err, err
+
+
+def assert_whole_bundle(path: Path) -> None:
+    with zipfile.ZipFile(path) as archive:
+        assert archive.testzip() is None
+        names = archive.namelist()
+        sums = archive.read("SHA256SUMS").decode("utf-8").splitlines()
+        for line in sums:
+            digest, name = line.split("  ", 1)
+            assert hashlib.sha256(archive.read(name)).hexdigest() == digest, name
+    assert "index.html" in names and len(sums) == len(names) - 1
+
+
+def test_build_and_pack_started_together_take_turns_with_the_lock(tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    for _ in range(2):
+        runs = [start_verb(study, "build", "--fresh"), start_verb(study, "pack")]
+        results = [finish(run) for run in runs]
+        for code, err in results:
+            assert_clean_exit(code, err)
+        assert 0 in [code for code, _ in results]
+        assert_one_complete_site(study)
+    assert_whole_bundle(study / "bundles" / "invented-study.zip")
+
+
+def _edit(study: Path, stop: threading.Event, saves: list[int]) -> None:
+    """An editor saving the note atomically (a new file moved over the old, as most editors
+    do) and the edge list in place, in two writes with a pause between, as some editors do."""
+    edges = study / "data" / "edges.csv"
+    note = study / "notes" / "intro.md"
+    whole = edges.read_text(encoding="utf-8")
+    count = 0
+    while not stop.is_set():
+        count += 1
+        temporary = note.with_name(f".intro.md.{count}.tmp")
+        temporary.write_text(f"# Intro\n\nSave number {count}.\n", encoding="utf-8")
+        os.replace(temporary, note)
+        with edges.open("w", encoding="utf-8") as handle:
+            handle.write(whole[: len(whole) // 2])
+            handle.flush()
+            time.sleep(0.05)
+            handle.write(whole[len(whole) // 2:])
+        time.sleep(0.1)
+    saves.append(count)
+
+
+def test_watch_build_and_pack_run_against_each_other_while_an_editor_saves(tmp_path: Path) -> None:
+    from test_watch import _wait, _Watch
+
+    study = small_study(tmp_path / "study")
+    (study / "notes").mkdir()
+    (study / "notes" / "intro.md").write_text("# Intro\n\nFirst words.\n", encoding="utf-8")
+    watch = _Watch(study)
+    try:
+        _wait(lambda: watch.state()["ok"], what="the first build of the preview")
+        stop, saves = threading.Event(), []
+        editor = threading.Thread(target=_edit, args=(study, stop, saves))
+        editor.start()
+        try:
+            for _ in range(2):
+                runs = [start_verb(study, "build", "--fresh"), start_verb(study, "pack")]
+                for run in runs:
+                    assert_clean_exit(*finish(run, timeout=120))
+        finally:
+            stop.set()
+            editor.join()
+        assert saves and saves[0] > 5  # the editor saved all through the builds
+        (study / "notes" / "intro.md").write_text("# Intro\n\nLast words.\n", encoding="utf-8")
+        _wait(lambda: b"Last words." in watch.get("/notes/intro.html")[2], timeout=60,
+              what="the preview to show the last save")
+        assert watch.process.poll() is None  # the preview outlived it all
+        assert watch.interrupt() == 0
+    finally:
+        watch.close()
+    assert not [line for line in watch.stderr if "Traceback" in line], watch.stderr
+    # Whatever the packs that won the lock wrote is whole; one more build and pack of the last
+    # save are clean.
+    bundle = study / "bundles" / "invented-study.zip"
+    if bundle.exists():
+        assert_whole_bundle(bundle)
+    assert sorted(p.name for p in study.glob("bundles/.*")) == []  # no temporary zip left
+    assert main(["build", str(study), "--quiet"]) == 0
+    assert_one_complete_site(study)
+    assert b"Last words." in (study / "output" / "notes" / "intro.html").read_bytes()
+    assert main(["pack", str(study), "--quiet"]) == 0
+    assert_whole_bundle(bundle)
