@@ -21,6 +21,7 @@ import pytest
 from conftest import write_study
 
 from generator.build import build_study
+from generator.cli import main
 from generator.pack import pack_study
 
 # Each ends a different context: a script element, a quoted attribute, a CDATA section or a
@@ -259,3 +260,64 @@ def test_every_file_of_a_partner_bundle_holds_the_hostile_text_only_as_text(host
         holding = _holding(found, text)
         assert {"index.html", "sharing.html", "search-index.js", "files/net/network.graphml",
                 "networks/net/explore-data.js"} <= holding, text
+
+
+# ---------------------------------------------------------------------------------------------
+# Links in the study folder that lead out of it: refused, and nothing behind them read
+
+
+PRIVATE = "Private words from outside the study"
+
+
+def _small_study(root: Path, **tables: dict) -> Path:
+    return write_study(root, networks=[{"id": "net", "edges": "data/edges.csv"}],
+                       files={"data/edges.csv": "source,target\na,b\nb,c\n"}, tables=tables)
+
+
+def _outside(tmp_path: Path) -> Path:
+    folder = tmp_path / "elsewhere"
+    folder.mkdir(exist_ok=True)
+    (folder / "diary.md").write_text(f"# Diary\n\n{PRIVATE}\n", encoding="utf-8")
+    return folder
+
+
+@pytest.mark.parametrize("link", ["a note", "the notes folder", "the summary", "the terms"])
+def test_a_link_out_of_the_study_is_refused_and_what_it_leads_to_is_never_shown(
+        tmp_path: Path, capsys: pytest.CaptureFixture, link: str) -> None:
+    outside = _outside(tmp_path)
+    study = _small_study(tmp_path / "study")
+    verb = "build"
+    if link == "a note":
+        (study / "notes").mkdir()
+        (study / "notes" / "diary.md").symlink_to(outside / "diary.md")
+    elif link == "the notes folder":
+        (study / "notes").symlink_to(outside, target_is_directory=True)
+    elif link == "the summary":
+        (study / "summary.md").symlink_to(outside / "diary.md")
+        toml = study / "study.toml"
+        toml.write_text(toml.read_text("utf-8").replace(
+            "[study]\n", '[study]\nsummary = "summary.md"\n'), "utf-8")
+    else:
+        (study / "terms.md").symlink_to(outside / "diary.md")
+        toml = study / "study.toml"
+        toml.write_text(toml.read_text("utf-8") + '\n[sharing]\nterms = "terms.md"\n', "utf-8")
+        verb = "pack"
+    assert main([verb, str(study), "--quiet"]) == 1
+    err = capsys.readouterr().err
+    assert "outside the study folder" in err and "Traceback" not in err, err
+    assert PRIVATE not in err
+    assert not (study / "output").exists() and not (study / "bundles").exists()
+
+
+def test_a_bundles_folder_linking_out_of_the_study_is_refused_without_out(
+        tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    outside = _outside(tmp_path)
+    study = _small_study(tmp_path / "study")
+    (study / "bundles").symlink_to(outside, target_is_directory=True)
+    assert main(["pack", str(study), "--quiet"]) == 1
+    err = capsys.readouterr().err
+    assert "leads out of the study folder" in err and "--out" in err and "Traceback" not in err
+    assert sorted(p.name for p in outside.iterdir()) == ["diary.md"]  # nothing written there
+    # Said on the command line, a place outside the study is the user's choice.
+    assert main(["pack", str(study), "--quiet", "--out", str(outside / "partner.zip")]) == 0
+    assert (outside / "partner.zip").is_file()
