@@ -134,6 +134,15 @@ def test_the_preview_script_and_style_go_before_the_head_end_and_the_policy_allo
     assert served.replace(head, "") == PAGE[PAGE.index("</head>"):]  # the rest is untouched
 
 
+def test_the_preview_script_puts_a_failed_builds_message_in_as_text_only() -> None:
+    # The message quotes file names and values from the study: never markup.
+    script = (Path(__file__).resolve().parents[1] / "generator" / "watch" / "preview.js"
+              ).read_text(encoding="utf-8")
+    assert "textContent = text" in script
+    assert not [word for word in ("innerHTML", "outerHTML", "insertAdjacentHTML",
+                                  "document.write", "eval(") if word in script]
+
+
 def test_a_page_without_a_head_is_served_as_it_is() -> None:
     assert inject_preview(b"<p>no head</p>", build=1) == b"<p>no head</p>"
 
@@ -398,6 +407,8 @@ def test_served_pages_carry_the_preview_script_and_the_files_on_disk_do_not(live
     status, headers, body = live.get("/notes/intro.html")
     page = body.decode("utf-8")
     assert status == 200 and headers["Content-Type"] == "text/html; charset=utf-8"
+    assert (headers["Cache-Control"], headers["X-Content-Type-Options"],
+            headers["Referrer-Policy"]) == ("no-store", "nosniff", "no-referrer")
     assert SCRIPT_TAG in page and STYLE_TAG in page and "connect-src 'self'" in page
     on_disk = (live.study / "output" / "notes" / "intro.html").read_text(encoding="utf-8")
     assert "First words" in on_disk and "/.netfolio/" not in on_disk
