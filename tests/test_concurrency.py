@@ -3,6 +3,7 @@ last site, each exercised with real processes."""
 
 from __future__ import annotations
 
+import errno
 import hashlib
 import json
 import os
@@ -11,7 +12,9 @@ import socket
 import subprocess
 import sys
 import textwrap
+import threading
 import time
+import zipfile
 from pathlib import Path
 
 import pytest
@@ -207,11 +210,22 @@ HANGING_BUILD = textwrap.dedent("""
                 time.sleep(600)
             return written
         Path.write_bytes = write_then_hang
-    else:  # between moving the old site aside and moving the new one in
+    elif where == "analysing":  # everything computed, nothing of the site written yet
+        import generator.build
+        real_write_site = generator.build.write_site
+        def hang_then_write(*args, **kwargs):
+            Path(sys.argv[3]).touch()
+            time.sleep(600)
+            return real_write_site(*args, **kwargs)
+        generator.build.write_site = hang_then_write
+    else:  # "renaming": after moving the old site aside (before the new one moves in), or
+           # "swapped": after the new site moved in (before the old copy is removed)
         real_rename = Path.rename
         def rename_then_hang(self, target):
             moved = real_rename(self, target)
-            if Path(target).name == ".output.previous":
+            if where == "renaming" and Path(target).name == ".output.previous":
+                time.sleep(600)
+            if where == "swapped" and self.name.startswith(".output.building-"):
                 time.sleep(600)
             return moved
         Path.rename = rename_then_hang
@@ -267,3 +281,183 @@ def test_a_build_killed_between_the_renames_has_its_last_site_restored(tmp_path:
     edges.write_bytes(good)
     build_study(study)
     assert_one_complete_site(study)
+
+
+def test_a_build_killed_before_it_writes_anything_leaves_the_site_and_a_lock_the_next_takes_over(
+        tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    script = tmp_path / "hang.py"
+    script.write_text(HANGING_BUILD, encoding="utf-8")
+    reached = tmp_path / "reached"
+    process = run_script(script, "analysing", str(study), str(reached))
+    kill_when(process, reached.exists)
+    assert (study / LOCK_NAME).exists()  # held by a process that no longer exists
+    assert sorted(p.name for p in study.glob(".output.*")) == []
+    assert site_bytes(study / "output") == before
+    assert main(["build", str(study), "--quiet"]) == 0  # the stale lock is taken over
+    assert_one_complete_site(study)
+
+
+def test_a_build_killed_just_after_its_swap_leaves_the_new_site_and_an_old_copy_removed_next(
+        tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    script = tmp_path / "hang.py"
+    script.write_text(HANGING_BUILD, encoding="utf-8")
+    process = run_script(script, "swapped", str(study))
+    kill_when(process, lambda: (study / ".output.previous").is_dir()
+              and (study / "output" / MARKER).is_file())
+    assert site_bytes(study / ".output.previous") == before  # the last site, whole
+    manifest = json.loads((study / "output" / "manifest.json").read_text(encoding="utf-8"))
+    found = site_bytes(study / "output")
+    assert {e["path"]: e["sha256"] for e in manifest["files"]} == {
+        path: hashlib.sha256(data).hexdigest() for path, data in found.items()
+        if path != "manifest.json"}  # the new site is whole too
+    build_study(study)
+    assert_one_complete_site(study)
+
+
+# ---------------------------------------------------------------------------------------------
+# A full disk
+
+
+def _full_disk_after(count: int, where: str):
+    """``Path.write_bytes`` that fails as a full disk does once ``count`` files have been
+    written to paths holding ``where``."""
+    real_write = Path.write_bytes
+    written = [0]
+
+    def write_bytes(self: Path, data: bytes) -> int:
+        if where in str(self):
+            if written[0] >= count:
+                raise OSError(errno.ENOSPC, "No space left on device", str(self))
+            written[0] += 1
+        return real_write(self, data)
+
+    return write_bytes
+
+
+@pytest.mark.parametrize("count", [0, 5])
+def test_a_full_disk_while_writing_the_site_exits_1_naming_the_folder_and_keeps_the_last_site(
+        tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture,
+        count: int) -> None:
+    study = small_study(tmp_path / "study")
+    build_study(study)
+    before = site_bytes(study / "output")
+    monkeypatch.setattr(Path, "write_bytes", _full_disk_after(count, ".output.building-"))
+    assert main(["build", str(study), "--quiet", "--fresh"]) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and "No space left on device" in err, err
+    assert f"beside {study / 'output'}" in err and "the last site is unchanged" in err, err
+    assert site_bytes(study / "output") == before
+    assert sorted(p.name for p in study.glob(".output.*")) == []  # no half-written site left
+    assert not (study / LOCK_NAME).exists()
+    monkeypatch.undo()
+    build_study(study, fresh=True)
+    assert_one_complete_site(study)
+
+
+# ---------------------------------------------------------------------------------------------
+# build, watch and pack against each other, and an editor saving while they run
+
+
+def start_verb(study: Path, *args: str) -> subprocess.Popen:
+    return subprocess.Popen([sys.executable, "-m", "generator", *args, str(study), "--quiet"],
+                            cwd=REPO, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+
+
+def assert_clean_exit(code: int, err: str) -> None:
+    """0, or 1 with a message: the lock held too long by another verb, or a file caught while
+    the editor was saving it. Never an internal error."""
+    assert code in (0, 1) and "Traceback" not in err, err
+    if code == 1:
+        assert "another netfolio build" in err or "error: " in err, err
+
+
+def assert_whole_bundle(path: Path) -> None:
+    with zipfile.ZipFile(path) as archive:
+        assert archive.testzip() is None
+        names = archive.namelist()
+        sums = archive.read("SHA256SUMS").decode("utf-8").splitlines()
+        for line in sums:
+            digest, name = line.split("  ", 1)
+            assert hashlib.sha256(archive.read(name)).hexdigest() == digest, name
+    assert "index.html" in names and len(sums) == len(names) - 1
+
+
+def test_build_and_pack_started_together_take_turns_with_the_lock(tmp_path: Path) -> None:
+    study = small_study(tmp_path / "study")
+    for _ in range(2):
+        runs = [start_verb(study, "build", "--fresh"), start_verb(study, "pack")]
+        results = [finish(run) for run in runs]
+        for code, err in results:
+            assert_clean_exit(code, err)
+        assert 0 in [code for code, _ in results]
+        assert_one_complete_site(study)
+    assert_whole_bundle(study / "bundles" / "invented-study.zip")
+
+
+def _edit(study: Path, stop: threading.Event, saves: list[int]) -> None:
+    """An editor saving the note atomically (a new file moved over the old, as most editors
+    do) and the edge list in place, in two writes with a pause between, as some editors do."""
+    edges = study / "data" / "edges.csv"
+    note = study / "notes" / "intro.md"
+    whole = edges.read_text(encoding="utf-8")
+    count = 0
+    while not stop.is_set():
+        count += 1
+        temporary = note.with_name(f".intro.md.{count}.tmp")
+        temporary.write_text(f"# Intro\n\nSave number {count}.\n", encoding="utf-8")
+        os.replace(temporary, note)
+        with edges.open("w", encoding="utf-8") as handle:
+            handle.write(whole[: len(whole) // 2])
+            handle.flush()
+            time.sleep(0.05)
+            handle.write(whole[len(whole) // 2:])
+        time.sleep(0.1)
+    saves.append(count)
+
+
+def test_watch_build_and_pack_run_against_each_other_while_an_editor_saves(tmp_path: Path) -> None:
+    from test_watch import _wait, _Watch
+
+    study = small_study(tmp_path / "study")
+    (study / "notes").mkdir()
+    (study / "notes" / "intro.md").write_text("# Intro\n\nFirst words.\n", encoding="utf-8")
+    watch = _Watch(study)
+    try:
+        _wait(lambda: watch.state()["ok"], what="the first build of the preview")
+        stop, saves = threading.Event(), []
+        editor = threading.Thread(target=_edit, args=(study, stop, saves))
+        editor.start()
+        try:
+            for _ in range(2):
+                runs = [start_verb(study, "build", "--fresh"), start_verb(study, "pack")]
+                for run in runs:
+                    assert_clean_exit(*finish(run, timeout=120))
+        finally:
+            stop.set()
+            editor.join()
+        assert saves and saves[0] > 5  # the editor saved all through the builds
+        (study / "notes" / "intro.md").write_text("# Intro\n\nLast words.\n", encoding="utf-8")
+        _wait(lambda: b"Last words." in watch.get("/notes/intro.html")[2], timeout=60,
+              what="the preview to show the last save")
+        assert watch.process.poll() is None  # the preview outlived it all
+        assert watch.interrupt() == 0
+    finally:
+        watch.close()
+    assert not [line for line in watch.stderr if "Traceback" in line], watch.stderr
+    # Whatever the packs that won the lock wrote is whole; one more build and pack of the last
+    # save are clean.
+    bundle = study / "bundles" / "invented-study.zip"
+    if bundle.exists():
+        assert_whole_bundle(bundle)
+    assert sorted(p.name for p in study.glob("bundles/.*")) == []  # no temporary zip left
+    assert main(["build", str(study), "--quiet"]) == 0
+    assert_one_complete_site(study)
+    assert b"Last words." in (study / "output" / "notes" / "intro.html").read_bytes()
+    assert main(["pack", str(study), "--quiet"]) == 0
+    assert_whole_bundle(bundle)

@@ -3,6 +3,7 @@ groups, a leak scan), and that describe and verify themselves."""
 
 from __future__ import annotations
 
+import errno
 import hashlib
 import hmac
 import io
@@ -647,3 +648,37 @@ def test_a_relations_page_in_a_bundle_names_nodes_by_code_and_keeps_the_numbers(
     for name in ("pairs.csv", "model.csv"):  # computed on the full data: the same numbers
         path = f"files/relations/advice-and-met/{name}"
         assert files[path] == (full / path).read_bytes()
+
+
+@pytest.mark.parametrize("failing", ["write_bytes", "replace"])
+def test_a_full_disk_while_packing_exits_1_naming_the_folder_and_keeps_the_last_bundle(
+        tmp_path, monkeypatch, capsys, failing):
+    root = _study(tmp_path / "s")
+    target = pack_study(root).path
+    before = target.read_bytes()
+    (root / KEY_FILE).unlink()  # so this pack would make a new key, and must not keep it
+    full = OSError(errno.ENOSPC, "No space left on device")
+    if failing == "write_bytes":
+        real_write = Path.write_bytes
+
+        def write_bytes(self, data):
+            if self.name.endswith(".packing"):
+                raise full
+            return real_write(self, data)
+
+        monkeypatch.setattr(Path, "write_bytes", write_bytes)
+    else:
+        def replace(source, destination):
+            raise full
+
+        monkeypatch.setattr(os, "replace", replace)
+    assert main(["pack", str(root), "-q"]) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and "No space left on device" in err, err
+    assert f"in {target.parent}" in err, err
+    assert target.read_bytes() == before
+    assert sorted(p.name for p in target.parent.iterdir()) == [target.name]  # no temporary left
+    if failing == "write_bytes":  # the zip never got written: the new key is not kept either
+        assert not (root / KEY_FILE).exists()
+    else:  # saved just before the move that failed: whole, so the next pack reads it
+        assert read_study_key(root).new is False

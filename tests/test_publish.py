@@ -363,3 +363,33 @@ def test_graphml_of_the_example_study_matches_networkx(tmp_path) -> None:
         analysis = analyse_network(read_network(study, net), communities=study.communities,
                                    measures=study.measures, seed=study.seed)
         assert _as_networkx_writes(graphml(analysis)) == networkx_graphml(analysis), net.id
+
+
+# ---------------------------------------------------------------------------------------------
+# Zip entries: relative paths only, so unzipping writes nowhere but the chosen folder
+
+
+@pytest.mark.parametrize("member", ["../x.csv", "files/../../x.csv", "/etc/x.csv", "a\\..\\x.csv",
+                                    "C:\\x.csv", "./x.csv", "a//x.csv", "a/", "", "a/./x.csv"])
+def test_a_zip_entry_that_is_not_a_plain_relative_path_is_refused(tmp_path, member) -> None:
+    from generator.pack.bundle import write_zip
+    from generator.publish.archive import safe_member, zip_bytes
+
+    assert not safe_member(member)
+    with pytest.raises(ValueError, match="not a plain relative path"):
+        zip_bytes({"ok.csv": b"a\n", member: b"b\n"}, date_time=(1980, 1, 1, 0, 0, 0))
+    with pytest.raises(ValueError, match="not a plain relative path"):
+        write_zip(tmp_path / "b.zip", {member: b"b\n"}, date_time=(1980, 1, 1, 0, 0, 0))
+    assert not (tmp_path / "b.zip").exists()
+
+
+def test_plain_relative_zip_entries_are_kept_as_they_are() -> None:
+    import zipfile
+
+    from generator.publish.archive import safe_member, zip_bytes
+
+    names = ["datapackage.json", "net/nodes.csv", "net/é-unité.csv"]
+    assert all(safe_member(name) for name in names)
+    data = zip_bytes(dict.fromkeys(names, b"x"), date_time=(1980, 1, 1, 0, 0, 0))
+    with zipfile.ZipFile(io.BytesIO(data)) as archive:
+        assert archive.namelist() == sorted(names)

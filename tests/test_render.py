@@ -699,6 +699,71 @@ def test_a_broken_user_template_is_a_config_error_naming_the_template(tmp_path):
         _render(study, _inputs(study))
 
 
+# A study folder may come from someone else: its theme is data, not code. These payloads are the
+# usual ways out of an unsandboxed jinja template to Python's os module (server-side template
+# injection, as jinja's own documentation of its sandbox describes).
+THEME_ESCAPES = [
+    "{{ cycler.__init__.__globals__.os.popen('touch PWNED').read() }}",
+    "{{ ''.__class__.__mro__[1].__subclasses__() }}",
+    "{{ self._TemplateReference__context }}",
+    "{{ page.__class__.__init__.__globals__ }}",
+    "{{ lipsum.__globals__['os'].popen('touch PWNED').read() }}",
+]
+
+
+@pytest.mark.parametrize("payload", THEME_ESCAPES)
+def test_a_study_theme_cannot_reach_python_from_a_template(tmp_path, payload, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    study = _study(tmp_path, theme="their-theme")
+    templates = tmp_path / "their-theme" / "templates"
+    templates.mkdir(parents=True)
+    (templates / "note.html").write_text(
+        '{% extends "base.html" %}{% block content %}' + payload + "{% endblock %}",
+        encoding="utf-8")
+    with pytest.raises(ConfigError, match="unsafe|undefined|has no attribute") as caught:
+        _render(study, _inputs(study))
+    assert caught.value.key == "site.theme"
+    assert not (tmp_path / "PWNED").exists()
+
+
+def test_a_theme_folder_outside_the_study_is_a_config_error(tmp_path):
+    study = _study(tmp_path / "study", theme="../elsewhere")
+    (tmp_path / "elsewhere" / "templates").mkdir(parents=True)
+    with pytest.raises(ConfigError, match="lies outside the study folder") as caught:
+        _render(study, [])
+    assert caught.value.key == "site.theme"
+
+
+@pytest.mark.parametrize("where", ["static/stolen.txt", "templates/note.html", "static/away",
+                                   "templates"])
+def test_a_theme_file_linking_out_of_the_theme_folder_is_refused_unread(tmp_path, where):
+    secret = tmp_path / "private"
+    secret.mkdir()
+    (secret / "note.html").write_text("private words", encoding="utf-8")
+    (secret / "stolen.txt").write_text("private words", encoding="utf-8")
+    study = _study(tmp_path / "study", theme="their-theme")
+    folder = tmp_path / "study" / "their-theme"
+    (folder / "static").mkdir(parents=True)
+    if where != "templates":
+        (folder / "templates").mkdir()
+    link = folder / where
+    target = secret if where in ("static/away", "templates") else secret / link.name
+    link.symlink_to(target, target_is_directory=target.is_dir())
+    with pytest.raises(ConfigError, match="leads out of the theme folder") as caught:
+        _render(study, _inputs(study))
+    assert caught.value.key == "site.theme"
+
+
+def test_a_theme_link_to_another_file_of_the_theme_is_followed(tmp_path):
+    study = _study(tmp_path, theme="my-theme")
+    static = tmp_path / "my-theme" / "static"
+    static.mkdir(parents=True)
+    (static / "real.css").write_text("body{}", encoding="utf-8")
+    (static / "alias.css").symlink_to(static / "real.css")
+    site = _render(study, _inputs(study))
+    assert site["static/alias.css"] == site["static/real.css"] == b"body{}"
+
+
 # ---------------------------------------------------------------------------------------------
 # Small pieces
 

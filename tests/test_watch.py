@@ -25,8 +25,8 @@ from conftest import edge_study
 
 from generator.cli import main
 from generator.errors import ConfigError, DataError, Finding, LockError
-from generator.watch.server import exposure_warning, inject_preview, locate
-from generator.watch.state import describe_failure
+from generator.watch.server import DEFAULT_HOST, exposure_warning, inject_preview, locate, start_server
+from generator.watch.state import PreviewState, describe_failure
 from generator.watch.watcher import Debouncer, StudyWatcher, watched_change
 
 CSP = ('<meta http-equiv="Content-Security-Policy" content="default-src \'none\'; script-src '
@@ -102,6 +102,16 @@ def test_files_of_the_site_are_found_and_folders_give_their_index(site: Path) ->
     assert locate(site, "/%69ndex.html").path == (site / "index.html").resolve()
 
 
+@pytest.mark.parametrize(("request_path", "location"), [
+    ("//notes", "/notes/"), ("///notes?x=1", "/notes/?x=1"), ("/notes//", None)])
+def test_a_folder_redirect_never_leads_to_another_host(site: Path, request_path: str,
+                                                       location: str | None) -> None:
+    found = locate(site, request_path)
+    assert found.location == location
+    if location is not None:  # a browser reads "//name/" as the address of a host "name"
+        assert found.status == HTTPStatus.MOVED_PERMANENTLY and not location.startswith("//")
+
+
 def test_without_a_site_folder_every_page_is_unavailable_but_refusals_still_apply(
         tmp_path: Path) -> None:
     assert locate(None, "/index.html").status == HTTPStatus.SERVICE_UNAVAILABLE
@@ -124,6 +134,15 @@ def test_the_preview_script_and_style_go_before_the_head_end_and_the_policy_allo
     assert served.replace(head, "") == PAGE[PAGE.index("</head>"):]  # the rest is untouched
 
 
+def test_the_preview_script_puts_a_failed_builds_message_in_as_text_only() -> None:
+    # The message quotes file names and values from the study: never markup.
+    script = (Path(__file__).resolve().parents[1] / "generator" / "watch" / "preview.js"
+              ).read_text(encoding="utf-8")
+    assert "textContent = text" in script
+    assert not [word for word in ("innerHTML", "outerHTML", "insertAdjacentHTML",
+                                  "document.write", "eval(") if word in script]
+
+
 def test_a_page_without_a_head_is_served_as_it_is() -> None:
     assert inject_preview(b"<p>no head</p>", build=1) == b"<p>no head</p>"
 
@@ -138,6 +157,16 @@ def test_only_a_loopback_address_goes_without_a_warning() -> None:
 
 # ---------------------------------------------------------------------------------------------
 # What the state says about a failed build
+
+
+def test_the_preview_listens_on_the_loopback_address_only_by_default() -> None:
+    server = start_server(DEFAULT_HOST, 0, PreviewState(None))
+    try:
+        assert server.socket.getsockname()[0] == "127.0.0.1" == DEFAULT_HOST
+        assert server.allowed_hosts == {f"{name}:{server.port}"
+                                        for name in ("127.0.0.1", "localhost", "[::1]")}
+    finally:
+        server.server_close()
 
 
 def test_a_data_error_is_described_by_its_first_finding_and_the_count(tmp_path: Path) -> None:
@@ -378,6 +407,8 @@ def test_served_pages_carry_the_preview_script_and_the_files_on_disk_do_not(live
     status, headers, body = live.get("/notes/intro.html")
     page = body.decode("utf-8")
     assert status == 200 and headers["Content-Type"] == "text/html; charset=utf-8"
+    assert (headers["Cache-Control"], headers["X-Content-Type-Options"],
+            headers["Referrer-Policy"]) == ("no-store", "nosniff", "no-referrer")
     assert SCRIPT_TAG in page and STYLE_TAG in page and "connect-src 'self'" in page
     on_disk = (live.study / "output" / "notes" / "intro.html").read_text(encoding="utf-8")
     assert "First words" in on_disk and "/.netfolio/" not in on_disk

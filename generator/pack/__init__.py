@@ -31,7 +31,7 @@ from ..build import (
 )
 from ..cache import CACHE_DIR, ResultCache, analysis_key
 from ..config import StudyConfig, load_study
-from ..errors import ConfigError, DataError
+from ..errors import ConfigError, DataError, OutputError
 from ..publish.lock import LockOwner, hold_study_lock
 from ..render.site import PartnerCopy
 from ..render.site_map import DATAPACKAGE
@@ -217,26 +217,43 @@ def _write_checked(target: Path, files: dict[str, bytes], scan: SecretMatcher,
                    key: StudyKey) -> int:
     """Write the zip to a temporary file beside ``target``, read every file back out of it and
     scan it; only a clean bundle replaces ``target`` (and saves a new key). Returns its size."""
-    target.parent.mkdir(parents=True, exist_ok=True)
-    handle, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".packing",
-                                    dir=target.parent)
-    os.close(handle)
+    try:
+        target.parent.mkdir(parents=True, exist_ok=True)
+        handle, name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".packing",
+                                        dir=target.parent)
+        os.close(handle)
+    except OSError as exc:
+        raise _write_error(target, exc) from None
     temporary = Path(name)
     try:
-        write_zip(temporary, files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
+        try:
+            write_zip(temporary, files, date_time=zip_time(os.environ.get("SOURCE_DATE_EPOCH")))
+        except OSError as exc:
+            raise _write_error(target, exc) from None
         with zipfile.ZipFile(temporary) as archive:
             written = {entry: archive.read(entry) for entry in archive.namelist()}
         leaks = find_leaks(written, scan)
         if leaks:
             raise LeakError(_leak_message(leaks), leaks=[(leak.file, leak.kind) for leak in leaks])
-        if key.new:
-            save_study_key(key)
-        os.chmod(temporary, 0o644)  # as any file the user makes; mkstemp's is 0600
-        os.replace(temporary, target)
+        try:
+            if key.new:
+                save_study_key(key)
+            os.chmod(temporary, 0o644)  # as any file the user makes; mkstemp's is 0600
+            os.replace(temporary, target)
+        except OSError as exc:
+            raise _write_error(target, exc) from None
     except BaseException:
         temporary.unlink(missing_ok=True)
         raise
     return target.stat().st_size
+
+
+def _write_error(target: Path, exc: OSError) -> OutputError:
+    """The error for a bundle that could not be written (a full disk, a read-only folder)."""
+    reason = exc.strerror or str(exc)
+    return OutputError(f"could not write the bundle {target} in {target.parent} ({reason}); "
+                       "nothing was replaced: free some space or fix the folder's permissions "
+                       "and pack again")
 
 
 def _leak_message(leaks: list[Leak]) -> str:

@@ -65,9 +65,13 @@ def read_study_key(root: Path) -> StudyKey:
 def save_study_key(key: StudyKey) -> None:
     """Write a new key readable by its owner only (0600); an existing file is never replaced."""
     descriptor = os.open(key.path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600)
-    with os.fdopen(descriptor, "w", encoding="ascii") as handle:
-        handle.write(key.secret.hex() + "\n")
-    os.chmod(key.path, 0o600)  # whatever the umask allowed
+    try:
+        with os.fdopen(descriptor, "w", encoding="ascii") as handle:
+            handle.write(key.secret.hex() + "\n")
+        os.chmod(key.path, 0o600)  # whatever the umask allowed
+    except BaseException:
+        key.path.unlink(missing_ok=True)  # a key cut short (a full disk) would read as malformed
+        raise
 
 
 def node_codes(ids: Iterable[str], secret: bytes) -> dict[str, str]:

@@ -63,18 +63,24 @@ def write_site(output: Path, files: dict[str, bytes], *, inputs: list[Path]) -> 
         raise OutputError(f"{previous} exists beside the output folder and was not made by "
                           "netfolio; netfolio needs that name for a moment while it swaps the "
                           "new site in: move it away")
-    output.parent.mkdir(parents=True, exist_ok=True)
     every = dict(files)
     every[MARKER] = MARKER_TEXT
     every["manifest.json"] = manifest_json(every)
-    staging = Path(tempfile.mkdtemp(prefix=_staging_prefix(output), dir=output.parent))
+    try:
+        output.parent.mkdir(parents=True, exist_ok=True)
+        staging = Path(tempfile.mkdtemp(prefix=_staging_prefix(output), dir=output.parent))
+    except OSError as exc:
+        raise _write_error(output, exc) from None
     try:
         for rel, data in every.items():
             target = staging / rel
             if not target.resolve().is_relative_to(staging.resolve()):
                 raise OutputError(f"refusing to write {rel!r} outside the site folder")
-            target.parent.mkdir(parents=True, exist_ok=True)
-            target.write_bytes(data)
+            try:
+                target.parent.mkdir(parents=True, exist_ok=True)
+                target.write_bytes(data)
+            except OSError as exc:
+                raise _write_error(output, exc) from None
         os.chmod(staging, 0o755)
         with SWAP_LOCK:
             _swap_in(staging, output)
@@ -85,6 +91,15 @@ def write_site(output: Path, files: dict[str, bytes], *, inputs: list[Path]) -> 
             pass  # report the first failure, not this one; the next build removes the rest
         raise
     return len(every)
+
+
+def _write_error(output: Path, exc: OSError) -> OutputError:
+    """The error for a site that could not be written beside ``output`` (the disk is full, the
+    folder is read-only): it names the folder and the reason, and says the last site stays."""
+    reason = exc.strerror or str(exc)
+    return OutputError(f"could not write the new site beside {output} ({reason}); nothing was "
+                       "replaced: the last site is unchanged. Free some space or fix the "
+                       f"folder's permissions in {output.parent} and build again")
 
 
 # Held while the new site is swapped in. A preview server in the same process takes it while it

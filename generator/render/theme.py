@@ -3,6 +3,11 @@
 A theme is a folder with ``templates/`` and ``static/``. ``[site] theme`` names a theme shipped
 with netfolio or gives a folder (relative to the study folder) whose files override the default
 theme's files of the same name.
+
+A study folder may come from someone else, so its theme is not trusted: its templates run in
+jinja's sandbox (no reaching Python's internals from ``{{ ... }}``, so no running commands), the
+folder must lie inside the study folder, and a template or static file that is a link leading
+out of the theme folder is refused rather than read.
 """
 
 from __future__ import annotations
@@ -10,12 +15,15 @@ from __future__ import annotations
 import dataclasses
 import difflib
 import hashlib
+import os
+from collections.abc import Callable
 from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 import jinja2
+from jinja2.sandbox import ImmutableSandboxedEnvironment
 
 from ..config import StudyConfig
 from ..errors import ConfigError
@@ -52,19 +60,60 @@ def packaged_themes() -> list[str]:
                   if entry.is_dir() and (entry / "templates").is_dir())
 
 
-def _read_tree(folder: Traversable, prefix: str = "") -> dict[str, bytes]:
-    """Every file below ``folder`` by relative posix path; hidden files and caches are skipped."""
+def _read_tree(folder: Traversable, prefix: str = "", *, within: Path | None = None
+               ) -> dict[str, bytes]:
+    """Every file below ``folder`` by relative posix path; hidden files and caches are skipped.
+    ``within`` (a study's theme folder): a file or folder that, links resolved, lies outside it
+    is a ConfigError, never read."""
     found: dict[str, bytes] = {}
     if not folder.is_dir():
         return found
     for entry in sorted(folder.iterdir(), key=lambda e: e.name):
         if entry.name.startswith(".") or entry.name == "__pycache__":
             continue
+        if within is not None:
+            _check_within(Path(str(entry)), within)
         if entry.is_dir():
-            found.update(_read_tree(entry, f"{prefix}{entry.name}/"))
+            found.update(_read_tree(entry, f"{prefix}{entry.name}/", within=within))
         else:
             found[prefix + entry.name] = entry.read_bytes()
     return found
+
+
+def _check_within(path: Path, folder: Path) -> None:
+    """Refuse ``path`` unless, links resolved, it lies inside ``folder`` (already resolved)."""
+    try:
+        inside = path.resolve().is_relative_to(folder)
+    except (OSError, RuntimeError):  # a link that leads back to itself
+        inside = False
+    if not inside:
+        raise ConfigError(f"the theme file {path} is a link that leads out of the theme folder "
+                          f"{folder}; netfolio reads nothing outside the study: copy the file in",
+                          key=_THEME_KEY)
+
+
+def _check_links(top: Path, folder: Path) -> None:
+    """Refuse any link below ``top`` (not followed while looking) that leads out of ``folder``."""
+    for parent, dirs, names in os.walk(top):
+        for name in sorted(dirs + names):
+            path = Path(parent) / name
+            if path.is_symlink():
+                _check_within(path, folder)
+
+
+class _ThemeFolderLoader(jinja2.FileSystemLoader):
+    """Templates of a study's theme folder; a template that is a link leading out of the theme
+    folder ``folder`` is refused (``FileSystemLoader`` already refuses ``..`` in a name)."""
+
+    def __init__(self, templates: Path, folder: Path) -> None:
+        super().__init__(str(templates), encoding="utf-8")
+        self.folder = folder
+
+    def get_source(self, environment: jinja2.Environment, template: str
+                   ) -> tuple[str, str, Callable[[], bool]]:
+        source, filename, uptodate = super().get_source(environment, template)
+        _check_within(Path(filename), self.folder)
+        return source, filename, uptodate
 
 
 @dataclass(frozen=True)
@@ -110,7 +159,9 @@ class Theme:
 
 
 def _environment(loaders: list[jinja2.BaseLoader]) -> jinja2.Environment:
-    return jinja2.Environment(
+    # Sandboxed for every theme, shipped or not, so a study's template that overrides one of
+    # the default theme's renders exactly as the default would.
+    return ImmutableSandboxedEnvironment(
         loader=jinja2.ChoiceLoader(loaders),
         autoescape=True,  # every string from data or config is escaped
         undefined=jinja2.StrictUndefined,  # a misspelt variable fails the build, not the page
@@ -139,6 +190,10 @@ def load_theme(study: StudyConfig) -> Theme:
         return Theme(name, _environment([loader, default_loader]), {**static, **own_static})
 
     folder = (study.root / name).resolve() if name.strip() else None
+    if folder is not None and not folder.is_relative_to(study.root):
+        raise ConfigError(f"the theme folder '{name}' lies outside the study folder "
+                          f"{study.root}; netfolio reads nothing outside the study: copy the "
+                          "theme into it", key=_THEME_KEY)
     if folder is None or not folder.is_dir():
         close = difflib.get_close_matches(name, shipped, n=1, cutoff=0.5)
         hint = f"; did you mean '{close[0]}'?" if close else ""
@@ -151,6 +206,9 @@ def load_theme(study: StudyConfig) -> Theme:
                           "folder", key=_THEME_KEY)
     loaders: list[jinja2.BaseLoader] = []
     if templates.is_dir():
-        loaders.append(jinja2.FileSystemLoader(str(templates), encoding="utf-8"))
+        _check_within(templates, folder)
+        _check_links(templates, folder)
+        loaders.append(_ThemeFolderLoader(templates, folder))
     loaders.append(default_loader)
-    return Theme(name, _environment(loaders), {**static, **_read_tree(Path(user_static))})
+    return Theme(name, _environment(loaders),
+                 {**static, **_read_tree(Path(user_static), within=folder)})

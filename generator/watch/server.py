@@ -69,7 +69,8 @@ def locate(site: Path | None, target: str) -> Located:
     ``..``, no ``.netfolio-site`` marker, no hidden file), holds a backslash, or decodes to a
     slash, backslash or NUL (``%2f``, ``%5c``, ``%00``) or to bytes that are not UTF-8; and any
     file that, symlinks resolved, lies outside the site or under a dot-named part of it. A
-    folder gives its ``index.html``. No site folder yet: 503, after the refusals."""
+    folder gives its ``index.html`` (asked for without its trailing slash, a redirect to the same
+    path with it, never to another host). No site folder yet: 503, after the refusals."""
     path, _, query = target.partition("#")[0].partition("?")
     names = _names(path)
     if names is None:
@@ -80,8 +81,9 @@ def locate(site: Path | None, target: str) -> Located:
     found = _inside(top, top.joinpath(*names))
     if found is not None and found.is_dir():
         if not path.endswith("/"):
+            # One leading slash only: "//notes/" would send the browser to a host "notes".
             return Located(HTTPStatus.MOVED_PERMANENTLY,
-                           location=path + "/" + (f"?{query}" if query else ""))
+                           location="/" + path.lstrip("/") + "/" + (f"?{query}" if query else ""))
         found = _inside(top, found / "index.html")
     if found is None:
         return Located(HTTPStatus.FORBIDDEN)
