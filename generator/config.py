@@ -383,6 +383,7 @@ def _network(root: Path, data: Any, index: int) -> NetworkConfig:
     title = t.get("title", str, net_id)
     if not title.strip():
         raise ConfigError("may not be empty", key=f"{dotted}.title")
+    _refuse_control_characters(title, f"{dotted}.title")
     wave = t.get("wave", int)
     series = t.get("series", str)
     if wave is not None and series is None:
@@ -547,6 +548,12 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     if output == root or root.is_relative_to(output):
         raise ConfigError(f"the output folder '{output_raw}' may not be the study folder or "
                           "contain it", key="study.output")
+    if not output.is_relative_to(root):
+        # A study folder may come from someone else: it names where its site goes only inside
+        # itself. Writing elsewhere is the person's own choice, on the command line.
+        raise ConfigError(f"the output folder '{output_raw}' lies outside the study folder; "
+                          "give a folder inside it, or write the site elsewhere with "
+                          "'netfolio build --out <folder>'", key="study.output")
 
     networks_raw = raw.get("network", [])
     if not isinstance(networks_raw, list):
@@ -606,6 +613,7 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
     title = s.get("title", str, required=True)
     if not title.strip():
         raise ConfigError("may not be empty", key="study.title")
+    _refuse_control_characters(title, "study.title")
     relations = _relations(raw.get("relations", []), written)
     return StudyConfig(
         root=root,
@@ -645,6 +653,15 @@ def _study(root: Path, raw: dict[str, Any]) -> StudyConfig:
         build=BuildConfig(cluster=cluster.strip() if cluster is not None else None),
         relations=relations,
     )
+
+
+def _refuse_control_characters(text: str, key: str) -> None:
+    """Titles go into every page and figure; a control character (a tab, a bell, a line
+    break) would make the figures' SVG ill-formed."""
+    bad = next((ch for ch in text if ord(ch) < 32 or ord(ch) == 127), None)
+    if bad is not None:
+        raise ConfigError(f"holds the control character U+{ord(bad):04X}; write the title on "
+                          "one line with plain characters", key=key, locate=True)
 
 
 def _perturbation_settings(c: _Table) -> tuple[int, float]:
@@ -732,6 +749,7 @@ def _relations(raw: Any, written: tuple[NetworkConfig, ...]) -> tuple[RelationsC
         title = t.get("title", str, rel_id)
         if not title.strip():
             raise ConfigError("may not be empty", key=f"{dotted}.title", locate=True)
+        _refuse_control_characters(title, f"{dotted}.title")
         model = _relation_model(t, names, dotted)
         found.append(RelationsConfig(id=rel_id, title=title.strip(), networks=names,
                                      permutations=permutations, model=model, index=index))

@@ -455,3 +455,17 @@ def test_an_adjacency_matrix_is_its_own_kind_of_source(tmp_path):
     (network,) = load_study(root).networks
     assert network.data == MatrixSource(path=tmp_path.resolve() / "data" / "m.csv")
     assert (network.edges, network.weight) == (None, None)
+
+
+def test_output_folder_outside_the_study_is_refused_and_points_to_out(tmp_path):
+    # A study from someone else may not choose where on this machine its site is written.
+    root = study_with(tmp_path / "study", study={"title": "T", "output": "../elsewhere"})
+    error = config_error(root)
+    assert error.key == "study.output" and "lies outside the study folder" in str(error)
+    assert "--out" in str(error)
+
+
+@pytest.mark.parametrize("title", ["Bell\u0007", "Two\nlines", "Tab\there"])
+def test_titles_with_control_characters_are_refused(tmp_path, title):
+    error = config_error(study_with(tmp_path / "study", study={"title": title}))
+    assert error.key == "study.title" and "control character U+00" in str(error)
