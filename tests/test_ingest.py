@@ -347,7 +347,7 @@ def test_asymmetric_undirected_matrix_names_the_first_asymmetric_cell(tmp_path):
 
 def test_matrix_labels_that_differ_are_refused(tmp_path):
     (finding,) = data_error(matrix_study(tmp_path, ",a,b,c\na,0,1,0\nb,1,0,0\nd,0,0,0\n")).findings
-    assert (finding.file, finding.line) == (MATRIX, 1)
+    assert (finding.file, finding.line, finding.value) == (MATRIX, 4, "d")  # the row's own line
     assert finding.message == ("an adjacency matrix needs the same labels in its header row and "
                                "first column: row label 'd' has no column")
 

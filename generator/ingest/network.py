@@ -413,11 +413,19 @@ def _read_matrix(net: NetworkConfig, matrix: MatrixSource, name: str, checks: Da
     if sorted(row_labels) != sorted(col_labels):
         only_rows = sorted(set(row_labels) - set(col_labels))
         only_cols = sorted(set(col_labels) - set(row_labels))
+        repeated = next((label for i, label in enumerate(row_labels)
+                         if label in row_labels[:i]), None)
         odd = (f"row label {only_rows[0]!r} has no column" if only_rows
                else f"column label {only_cols[0]!r} has no row" if only_cols
-               else "a row label is repeated")
+               else f"row label {repeated!r} is repeated")
+        # A row's label is on that row's line; a column's on the header line.
+        where = (int(table.lines[row_labels.index(only_rows[0])]) if only_rows
+                 else int(table.lines[len(row_labels) - 1 - row_labels[::-1].index(repeated)])
+                 if not only_cols and repeated is not None else 1)
         raise DataError(Finding("error", name, "an adjacency matrix needs the same labels in its "
-                                f"header row and first column: {odd}", line=1))
+                                f"header row and first column: {odd}", line=where,
+                                value=only_rows[0] if only_rows else only_cols[0] if only_cols
+                                else repeated))
     n = len(col_labels)
     cells = np.empty((len(row_labels), n), dtype=object)  # rows in file order, columns in header order
     for j, column in enumerate(table.columns[1:]):
