@@ -696,14 +696,24 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     node_lines: dict[str, int] = {}
     node_unit = "line"
     nodes_name = study.relative(net.nodes) if net.nodes is not None else data_name
+    refused: list[Finding] = []  # a file's errors, so the other file's are listed with them
     if net.nodes is not None:
-        node_frame, node_lines, node_unit = _read_node_list(net, net.nodes, nodes_name, checks)
+        try:
+            node_frame, node_lines, node_unit = _read_node_list(net, net.nodes, nodes_name,
+                                                                checks)
+        except DataError as error:
+            refused += error.findings
     row_labels: list[str] = []
-    if isinstance(net.data, EdgeListSource):
-        ties = _read_edge_list(net, net.data, data_name, checks)
-        weighted = net.data.weight is not None
-    else:
-        ties, row_labels, weighted = _read_matrix(net, net.data, data_name, checks)
+    try:
+        if isinstance(net.data, EdgeListSource):
+            ties = _read_edge_list(net, net.data, data_name, checks)
+            weighted = net.data.weight is not None
+        else:
+            ties, row_labels, weighted = _read_matrix(net, net.data, data_name, checks)
+    except DataError as error:
+        refused += error.findings
+    if refused:
+        raise DataError(list(dict.fromkeys([*refused, *checks.errors])))
     checks.raise_if_errors()
     # Every tie end as a code into ``named`` (sources and targets interleaved, in file order).
     ends = np.empty(2 * len(ties), dtype=object)
