@@ -157,7 +157,7 @@ def test_node_of_one_mode_in_the_other_side_column_exits_1(tmp_path: Path, capsy
         files={"data/e.csv": "source,target\na,e1\ne1,e2\n",
                "data/n.csv": "id,mode\na,person\ne1,event\ne2,event\n"})
     err = _cli_error(root, capsys)
-    for piece in ("data/e.csv", "line 3", "'source'", "'e1'", "listed as a event", "data/n.csv"):
+    for piece in ("data/e.csv", "line 3", "'source'", "'e1'", "listed as an event", "data/n.csv"):
         assert piece in err
 
 

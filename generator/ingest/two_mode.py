@@ -65,6 +65,11 @@ class TwoModeNetwork:
         return [str(v) for v in self.nodes.loc[self.nodes["mode"] == mode, "id"]]
 
 
+def _a(word: str) -> str:
+    """``a staff member``, ``an event``."""
+    return f"{'an' if word[:1].lower() in 'aeiou' else 'a'} {word}"
+
+
 def typed_mode_attributes(network: TwoModeNetwork, mode: str | None) -> pd.DataFrame:
     """The attributes of one mode's nodes (or, with ``mode`` None, of every node), indexed by id,
     a column of numbers where its filled cells all are; columns empty for these nodes are left
@@ -105,7 +110,7 @@ def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
             checks.add(Finding("error", name, "a node has an empty id", line=line,
                                column=net.node_id, unit=unit))
         elif (mode, node) in first_line:
-            where = f" as a {mode}" if mode else ""
+            where = f" as {_a(mode)}" if mode else ""
             checks.add(Finding("error", name, f"node id is repeated{where} (first on {unit} "
                                f"{first_line[(mode, node)]})", line=line, column=net.node_id,
                                value=node, unit=unit))
@@ -186,11 +191,11 @@ def _refuse_wrong_side(ties: list[_RawTie], declared: dict[NodeKey, int], net: N
             reported.add((mode, node))
             in_header = column == "header row"  # an incidence matrix's column id
             checks.add(Finding(
-                "error", data_name, f"node {node!r} is listed as a {other} in {nodes_name} "
+                "error", data_name, f"node {node!r} is listed as {_a(other)} in {nodes_name} "
                 f"({node_unit} {declared[(other, node)]}) but appears in the {mode} column; in a "
                 f"two-mode network the {column!r} column holds {mode} nodes only"
                 if not in_header else
-                f"node {node!r} is listed as a {other} in {nodes_name} ({node_unit} "
+                f"node {node!r} is listed as {_a(other)} in {nodes_name} ({node_unit} "
                 f"{declared[(other, node)]}) but names a column of the incidence matrix, whose "
                 f"columns are {mode} nodes", line=1 if in_header else tie.line,
                 column=node if in_header else column, value=node,
