@@ -158,10 +158,14 @@ class Theme:
                               key=_THEME_KEY) from None
 
 
-def _environment(loaders: list[jinja2.BaseLoader]) -> jinja2.Environment:
-    # Sandboxed for every theme, shipped or not, so a study's template that overrides one of
-    # the default theme's renders exactly as the default would.
-    return ImmutableSandboxedEnvironment(
+def _environment(loaders: list[jinja2.BaseLoader], *, sandboxed: bool) -> jinja2.Environment:
+    # A theme from the study folder may come from someone else: its templates run in jinja's
+    # sandbox (with the default templates beside them, so one that overrides a default renders
+    # as the default would). The themes shipped in the package are netfolio's own code and run
+    # unsandboxed: the sandbox checks every attribute a template reads, which doubles the time
+    # a site of many node pages takes to render.
+    kind = ImmutableSandboxedEnvironment if sandboxed else jinja2.Environment
+    return kind(
         loader=jinja2.ChoiceLoader(loaders),
         autoescape=True,  # every string from data or config is escaped
         undefined=jinja2.StrictUndefined,  # a misspelt variable fails the build, not the page
@@ -185,9 +189,10 @@ def load_theme(study: StudyConfig) -> Theme:
     shipped = packaged_themes()
     if name in shipped:
         if name == DEFAULT_THEME:
-            return Theme(name, _environment([default_loader]), static)
+            return Theme(name, _environment([default_loader], sandboxed=False), static)
         loader, own_static = _packaged_loader(name)
-        return Theme(name, _environment([loader, default_loader]), {**static, **own_static})
+        return Theme(name, _environment([loader, default_loader], sandboxed=False),
+                     {**static, **own_static})
 
     folder = (study.root / name).resolve() if name.strip() else None
     if folder is not None and not folder.is_relative_to(study.root):
@@ -210,5 +215,5 @@ def load_theme(study: StudyConfig) -> Theme:
         _check_links(templates, folder)
         loaders.append(_ThemeFolderLoader(templates, folder))
     loaders.append(default_loader)
-    return Theme(name, _environment(loaders),
+    return Theme(name, _environment(loaders, sandboxed=True),
                  {**static, **_read_tree(Path(user_static), within=folder)})
