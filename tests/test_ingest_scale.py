@@ -108,7 +108,9 @@ def test_the_row_reader_takes_the_files_the_columnar_one_cannot(text, reason):
 def test_reading_gives_what_the_row_by_row_reader_recorded():
     # ingest_before.json was recorded by the row-by-row reader and cleaner that preceded the
     # columnar ones (see tests/fixtures/ingest_cases.py): 190 invented studies, cleaned
-    # networks with their dtypes, findings and refusals.
+    # networks with their dtypes, findings and refusals. Five cases were re-recorded on purpose
+    # when a network whose node list and edge list both hold errors began to list both files'
+    # errors together (the node list's first, as recorded before).
     recorded = json.loads(ingest_cases.RECORDED.read_text())
     now = json.loads(json.dumps(ingest_cases.summaries()))
     assert len(now) == len(recorded) == len(ingest_cases.CASES)
