@@ -36,6 +36,7 @@ __all__ = [
     "StudyConfig",
     "check_relation_data",
     "load_study",
+    "network_setting_error",
     "projections",
 ]
 
@@ -507,6 +508,20 @@ def load_study(project: Path | str) -> StudyConfig:
         if exc.line is None and exc.key:  # every key set in study.toml is named with its line
             exc.line = _key_line(path.read_text(encoding="utf-8-sig"), exc.key)
         raise
+
+
+def network_setting_error(study: StudyConfig, network_id: str, key: str, message: str
+                          ) -> ConfigError:
+    """A ConfigError for ``key`` of the [[network]] table with ``network_id``, naming its line
+    of study.toml (for problems found once the data are read, such as a ``color_by`` that names
+    no column of the node list)."""
+    text = study.study_file.read_text(encoding="utf-8-sig")
+    tables = tomllib.loads(text).get("network", [])
+    index = next((i for i, t in enumerate(tables) if isinstance(t, dict)
+                  and t.get("id") == network_id), None)
+    dotted = f"network[{index + 1}].{key}" if index is not None else f"network.{key}"
+    return ConfigError(message, key=dotted, path=study.study_file,
+                       line=_key_line(text, dotted) if index is not None else None)
 
 
 def _key_line(text: str, dotted: str) -> int | None:

@@ -22,7 +22,7 @@ from conftest import (
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from generator.errors import DataError, Finding
+from generator.errors import ConfigError, DataError, Finding
 
 EDGES = "data/edges.csv"
 NODES = "data/nodes.csv"
@@ -128,10 +128,14 @@ def test_labels_that_look_like_numbers_stay_as_written(tmp_path):
 def test_unknown_colour_attribute_is_refused_listing_the_choices(tmp_path):
     root = edge_study(tmp_path, "source,target\na,b\n", nodes="id,unit\na,x\nb,y\n",
                       color_by="team")
-    (finding,) = data_error(root).findings
-    assert (finding.file, finding.column) == (NODES, "team")
-    assert finding.message == ("color_by = 'team' in study.toml names no node attribute; use one "
-                               "of: community, unit")
+    # A setting of study.toml: the error names its key and line there, and the node list read.
+    with pytest.raises(ConfigError) as caught:
+        load_network(root)
+    error = caught.value
+    assert error.key == "network[1].color_by" and error.line is not None
+    assert f"study.toml, line {error.line}: [network[1].color_by]" in error.format_message()
+    assert str(error) == ("'team' is not a node attribute of the node list data/nodes.csv; use "
+                          "one of: community, unit")
 
 
 # ---------------------------------------------------------------------------------------------

@@ -11,7 +11,13 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ..config import EdgeListSource, MatrixSource, NetworkConfig, StudyConfig
+from ..config import (
+    EdgeListSource,
+    MatrixSource,
+    NetworkConfig,
+    StudyConfig,
+    network_setting_error,
+)
 from ..errors import DataError, Finding
 from ..vocabulary import MEASURE_NAMES, count_of
 from .csvfile import Table, read_table
@@ -814,7 +820,8 @@ def _rename_reserved_columns(frame: pd.DataFrame, label_column: str | None, name
 
 def _check_display_settings(net: NetworkConfig, attributes: tuple[str, ...], study: StudyConfig) -> None:
     if net.color_by is not None and net.color_by != "community" and net.color_by not in attributes:
-        where = study.relative(net.nodes) if net.nodes else "the network (it has no node list)"
+        where = (f"the node list {study.relative(net.nodes)}" if net.nodes
+                 else "this network (it has no node list)")
         choices = ", ".join(("community",) + attributes)
-        raise DataError(Finding("error", where, f"color_by = {net.color_by!r} in study.toml names no "
-                                f"node attribute; use one of: {choices}", column=net.color_by))
+        raise network_setting_error(study, net.id, "color_by", f"{net.color_by!r} is not a node "
+                                    f"attribute of {where}; use one of: {choices}")
