@@ -55,3 +55,5 @@ def test_path_statistics_are_stated_as_estimates(built):
     page = (site / "networks" / "big" / "index.html").read_text()
     assert "at least" in page  # the diameter is a lower bound from sampled sources
     assert "network map by community" in page
+    # 80 units: the matrix of ties between them is left to the CSV, the page says so
+    assert "groups the matrix of ties between them is not shown here" in page

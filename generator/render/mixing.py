@@ -53,6 +53,12 @@ class MixingView:
     csv_href: str | None
     figure: FigureView | None
     directed: bool
+    matrix_left_out: str = ""  # why the matrix is only in the CSV (too many groups for a page)
+
+
+# Up to this many groups the page shows the mixing matrix (a 40 x 40 table); beyond, its
+# cells are in the CSV, so a page stays light with hundreds of groups.
+MATRIX_ON_PAGE = 40
 
 
 @dataclass(frozen=True)
@@ -110,7 +116,11 @@ def mixing_section(item: NetworkPageInput, frame: PageFrame, figures: tuple[Figu
             assortativity=assort, assortativity_anchor=assort_anchor,
             ei_reading=ei_text, ei_anchor=ei_anchor,
             groups=table.groups if table else (),
-            matrix=tuple(zip(table.groups, table.counts)) if table else (),
+            matrix=tuple(zip(table.groups, table.counts))
+            if table and len(table.groups) <= MATRIX_ON_PAGE else (),
+            matrix_left_out=(f"With {number(len(table.groups))} groups the matrix of ties "
+                             "between them is not shown here; the CSV holds every cell."
+                             if table and len(table.groups) > MATRIX_ON_PAGE else ""),
             per_group=tuple(GroupRow(g.group, g.nodes, g.internal, g.external,
                                      MISSING if g.ei is None else number(g.ei),
                                      group_ei_reading(g.ei, g.internal, g.external))
