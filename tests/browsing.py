@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import os
 import shutil
+from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
@@ -37,3 +38,14 @@ def build_example(work: Path) -> Path:
 
 def launch(playwright):  # type: ignore[no-untyped-def]
     return playwright.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS)
+
+
+def chromium_session() -> Iterator[object]:
+    """One Chromium for a test module: ``browser = pytest.fixture(scope="module")(
+    chromium_session)``."""
+    from playwright import sync_api
+
+    with sync_api.sync_playwright() as playwright:
+        chromium = launch(playwright)
+        yield chromium
+        chromium.close()

@@ -10,11 +10,10 @@ accessibility engine for automated Web UI testing"). Headless Chromium from the 
 from __future__ import annotations
 
 import os
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
-from browsing import build_example, launch, require_chromium
+from browsing import build_example, chromium_session, require_chromium
 
 pytestmark = pytest.mark.browser
 
@@ -56,12 +55,7 @@ def artifacts(tmp_path_factory: pytest.TempPathFactory) -> Path:
     return folder
 
 
-@pytest.fixture(scope="module")
-def browser() -> Iterator[object]:
-    with sync_api.sync_playwright() as playwright:
-        chromium = launch(playwright)
-        yield chromium
-        chromium.close()
+browser = pytest.fixture(scope="module")(chromium_session)
 
 
 def _open(browser, path: Path, *, width: int, scheme: str):

@@ -13,7 +13,7 @@ from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
-from browsing import build_example, launch, require_chromium
+from browsing import build_example, chromium_session, require_chromium
 
 from generator.build import build_study
 
@@ -99,12 +99,7 @@ def note_sites(tmp_path_factory: pytest.TempPathFactory) -> dict[str, Path]:
     return built
 
 
-@pytest.fixture(scope="module")
-def browser() -> Iterator[object]:
-    with sync_api.sync_playwright() as playwright:
-        chromium = launch(playwright)
-        yield chromium
-        chromium.close()
+browser = pytest.fixture(scope="module")(chromium_session)
 
 
 class _Tab:

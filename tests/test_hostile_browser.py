@@ -4,11 +4,10 @@ text's ever runs (it would open a dialog) nor breaks the pages' own."""
 
 from __future__ import annotations
 
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
-from browsing import launch, require_chromium
+from browsing import chromium_session, require_chromium
 from test_hostile_input import _hostile_study
 
 from generator.build import build_study
@@ -26,12 +25,7 @@ def site(tmp_path_factory: pytest.TempPathFactory) -> Path:
     return build_study(study).output
 
 
-@pytest.fixture(scope="module")
-def browser() -> Iterator[object]:
-    with sync_api.sync_playwright() as playwright:
-        chromium = launch(playwright)
-        yield chromium
-        chromium.close()
+browser = pytest.fixture(scope="module")(chromium_session)
 
 
 def test_no_page_runs_the_hostile_text_as_script(site: Path, browser) -> None:

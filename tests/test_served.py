@@ -22,7 +22,7 @@ from pathlib import Path
 from urllib.parse import urljoin, urlsplit
 
 import pytest
-from browsing import build_example, launch, require_chromium
+from browsing import build_example, chromium_session, require_chromium
 
 pytestmark = pytest.mark.browser
 
@@ -182,12 +182,7 @@ def test_downloads_are_served_with_their_types(server: str) -> None:
         assert body
 
 
-@pytest.fixture(scope="module")
-def browser() -> Iterator[object]:
-    with sync_api.sync_playwright() as playwright:
-        chromium = launch(playwright)
-        yield chromium
-        chromium.close()
+browser = pytest.fixture(scope="module")(chromium_session)
 
 
 @pytest.mark.parametrize("path", PAGE_KINDS)

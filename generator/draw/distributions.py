@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 from matplotlib.axes import Axes
@@ -74,6 +75,25 @@ def _skewed(analysis: NetworkAnalysis, panels: list[str]) -> bool:
     return len(analysis.measures) > LARGE_MAP_NODES or top > DEGREE_BARS_UP_TO
 
 
+def _degree_chart(analysis: NetworkAnalysis, panels: list[str], title: str,
+                  panel: Callable[[Axes, np.ndarray, str], None], ylabel: str, *,
+                  left: float = 0.8) -> tuple[bytes, bytes]:
+    """One panel per degree measure side by side, drawn by ``panel``; (SVG, PNG)."""
+    with drawing_style():
+        fig, axes = new_chart(3.6 * len(panels) + 0.4 + left, 2.9, title=title,
+                              panels=len(panels), left=left)
+        for ax, measure in zip(axes, panels):
+            panel(ax, np.array(analysis.measures[measure], dtype=float), measure)
+        axes[0].set_ylabel(ylabel)
+        return figure_bytes(fig)
+
+
+def _degree_facts(analysis: NetworkAnalysis, panels: list[str]) -> tuple[list[str], int]:
+    """Each panel's range in words, and how many nodes have no ties."""
+    words = [_degree_words(np.array(analysis.measures[m], dtype=float), m) for m in panels]
+    return words, int((np.array(analysis.measures["degree"]) == 0).sum())
+
+
 def draw_degree(analysis: NetworkAnalysis) -> Figure:
     """Bar chart of how many nodes have each degree; in- and out-degree side by side when the
     network is directed. A large or skewed network gets the complementary cumulative
@@ -83,14 +103,8 @@ def draw_degree(analysis: NetworkAnalysis) -> Figure:
         return _draw_degree_ccdf(analysis, panels)
     n = len(analysis.measures)
     title = f"{analysis.title}: degree distribution"
-    with drawing_style():
-        fig, axes = new_chart(3.6 * len(panels) + 1.2, 2.9, title=title, panels=len(panels))
-        for ax, measure in zip(axes, panels):
-            _degree_panel(ax, np.array(analysis.measures[measure], dtype=float), measure)
-        axes[0].set_ylabel("number of nodes")
-        svg, png = figure_bytes(fig)
-    words = [_degree_words(np.array(analysis.measures[m], dtype=float), m) for m in panels]
-    isolated = int((np.array(analysis.measures["degree"]) == 0).sum())
+    svg, png = _degree_chart(analysis, panels, title, _degree_panel, "number of nodes")
+    words, isolated = _degree_facts(analysis, panels)
     alone = f"; {count_of(isolated, 'node')} with no ties at all" if isolated else ""
     if analysis.directed:
         alt = (f"Two bar charts of the {count_of(n, 'node')}: {words[0]}; {words[1]}{alone}.")
@@ -106,15 +120,9 @@ def draw_degree(analysis: NetworkAnalysis) -> Figure:
 def _draw_degree_ccdf(analysis: NetworkAnalysis, panels: list[str]) -> Figure:
     n = len(analysis.measures)
     title = f"{analysis.title}: degree distribution"
-    with drawing_style():
-        fig, axes = new_chart(3.6 * len(panels) + 1.6, 2.9, title=title, panels=len(panels),
-                              left=1.2)
-        for ax, measure in zip(axes, panels):
-            _ccdf_panel(ax, np.array(analysis.measures[measure], dtype=float), measure)
-        axes[0].set_ylabel("share of nodes with at least\nthis many (log scale)")
-        svg, png = figure_bytes(fig)
-    words = [_degree_words(np.array(analysis.measures[m], dtype=float), m) for m in panels]
-    isolated = int((np.array(analysis.measures["degree"]) == 0).sum())
+    svg, png = _degree_chart(analysis, panels, title, _ccdf_panel,
+                             "share of nodes with at least\nthis many (log scale)", left=1.2)
+    words, isolated = _degree_facts(analysis, panels)
     alone = (f"; {count_of(isolated, 'node')} with no ties at all, counted in the shares but "
              "not drawn (a log scale has no zero)" if isolated else "")
     kind = "Two line charts" if analysis.directed else "A line chart"

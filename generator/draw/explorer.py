@@ -180,7 +180,7 @@ def explorer_data(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_
     sizes = size_nodes(analysis, settings)
     # A marker of area s points^2 has radius sqrt(s)/2 points; the view is 1000 units wide.
     radii = tuple(round(math.sqrt(a) / 2 / _POINTS_PER_VIEW, 2) for a in sizes.areas)
-    index = {node: i for i, node in enumerate(analysis.nodes.index)}
+    sources, targets = analysis.tie_vertices()
     edges = analysis.edges
     weights: list[object] = [None] * len(edges)
     strengths = (1.0,) * len(edges)
@@ -189,8 +189,8 @@ def explorer_data(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_
         weights = list(written)
         strengths = tuple(tie_strengths(written, analysis.weight_means)[0])
     widths = tie_widths(strengths, weighted=analysis.weighted) / _POINTS_PER_VIEW
-    ties = tuple((index[s], index[t], round(float(w), 2), _weight_text(weight))
-                 for s, t, w, weight in zip(edges["source"], edges["target"], widths, weights))
+    ties = tuple((s, t, round(float(w), 2), _weight_text(weight))
+                 for s, t, w, weight in zip(sources.tolist(), targets.tolist(), widths, weights))
     first = colour_measure(settings)
     names = [first] + [COMMUNITY] + [a for a in analysis.attributes]
     colourings = tuple(_choice(analysis, a) for a in dict.fromkeys(names))

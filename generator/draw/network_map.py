@@ -110,9 +110,9 @@ def _radii_points(sizes: NodeSizes) -> np.ndarray:
 
 def _tie_ends(analysis: NetworkAnalysis) -> tuple[tuple[tuple[int, int], ...], tuple[float, ...]]:
     """Every tie as a pair of node positions (node order) and its strength."""
-    index = {node: i for i, node in enumerate(analysis.nodes.index)}
+    sources, targets = analysis.tie_vertices()
     edges = analysis.edges
-    pairs = tuple((index[s], index[t]) for s, t in zip(edges["source"], edges["target"]))
+    pairs = tuple(zip(sources.tolist(), targets.tolist()))
     if not analysis.weighted:
         return pairs, (1.0,) * len(pairs)
     strengths, _ = tie_strengths([float(w) for w in edges["weight"]], analysis.weight_means)

@@ -32,8 +32,10 @@ import subprocess
 import sys
 import tempfile
 import time
+from collections.abc import Callable
 from pathlib import Path
 
+import pandas as pd
 import pytest
 
 pytestmark = pytest.mark.benchmark
@@ -81,14 +83,8 @@ def _sources(n: int, ties: int) -> list[int] | None:
     return sorted(random.Random(1).sample(range(n), min(_settings(ties)[1], n)))
 
 
-def _bare_igraph(folder: Path) -> dict[str, float]:
-    import igraph as ig
-    import numpy as np
-    import pandas as pd
-
-    from generator.analyse.layout import layout_iterations
-
-    stages: dict[str, float] = {}
+def _stopwatch(stages: dict[str, float]) -> Callable[[str], None]:
+    """``lap(name)`` records the seconds since the last lap (or since the stopwatch started)."""
     clock = time.perf_counter()
 
     def lap(name: str) -> None:
@@ -96,9 +92,24 @@ def _bare_igraph(folder: Path) -> dict[str, float]:
         now = time.perf_counter()
         stages[name] = now - clock
         clock = now
+    return lap
 
-    edges = pd.read_csv(folder / "data" / "edges.csv", dtype={"source": str, "target": str})
-    nodes = pd.read_csv(folder / "data" / "nodes.csv", dtype=str)
+
+def _read(folder: Path) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """The edge list and node list as a bare pandas read takes them."""
+    return (pd.read_csv(folder / "data" / "edges.csv", dtype={"source": str, "target": str}),
+            pd.read_csv(folder / "data" / "nodes.csv", dtype=str))
+
+
+def _bare_igraph(folder: Path) -> dict[str, float]:
+    import igraph as ig
+    import numpy as np
+
+    from generator.analyse.layout import layout_iterations
+
+    stages: dict[str, float] = {}
+    lap = _stopwatch(stages)
+    edges, nodes = _read(folder)
     lap("read")
     graph = ig.Graph.DataFrame(edges, directed=True, vertices=nodes, use_vids=False)
     strength = graph.es["weight"]
@@ -143,21 +154,12 @@ def _bare_igraph(folder: Path) -> dict[str, float]:
 
 def _networkx(folder: Path) -> dict[str, float]:
     import networkx as nx
-    import pandas as pd
 
     from generator.analyse.layout import layout_iterations
 
     stages: dict[str, float] = {}
-    clock = time.perf_counter()
-
-    def lap(name: str) -> None:
-        nonlocal clock
-        now = time.perf_counter()
-        stages[name] = now - clock
-        clock = now
-
-    edges = pd.read_csv(folder / "data" / "edges.csv", dtype={"source": str, "target": str})
-    nodes = pd.read_csv(folder / "data" / "nodes.csv", dtype=str)
+    lap = _stopwatch(stages)
+    edges, nodes = _read(folder)
     lap("read")
     graph = nx.DiGraph()
     graph.add_nodes_from(nodes["id"])
