@@ -113,6 +113,22 @@ def test_the_same_node_links_to_its_page_in_the_other_networks(tmp_path: Path) -
     assert "In the study's other networks" not in _page(site, "one", 1)  # x is only in one
 
 
+def test_a_node_in_many_networks_links_its_series_first_and_counts_the_rest(
+        tmp_path: Path, monkeypatch) -> None:
+    # Five team networks whose ids repeat; the first and the last are two waves of one series.
+    networks = [{"id": f"t{k}", "title": f"Team {k}", "edges": f"data/t{k}.csv"} for k in range(5)]
+    networks[0].update(series="teams", wave=1)
+    networks[4].update(series="teams", wave=2)
+    study = write_study(tmp_path / "study", networks=networks,
+                        files={f"data/t{k}.csv": "source,target\na,b\n" for k in range(5)})
+    monkeypatch.setattr(node_view_module, "ELSEWHERE_SHOWN", 2)
+    page = _page(build_study(study, output=tmp_path / "site").output, "t0", 1)
+    links = re.findall(r'<li><a href="([^"]+)">a in (Team \d)</a></li>', page)
+    assert links == [("../../t4/nodes/node-1.html", "Team 4"),
+                     ("../../t1/nodes/node-1.html", "Team 1")]
+    assert "also in 2 more networks of the study" in page
+
+
 def test_node_views_can_be_turned_off_and_stop_at_a_size(tmp_path: Path, monkeypatch) -> None:
     study = write_study(tmp_path / "off", networks=[{"id": "net", "edges": "data/e.csv"}],
                         files={"data/e.csv": "source,target\na,b\n"},

@@ -10,16 +10,40 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from ..config import NetworkConfig
 from ..draw.ego import EgoFigure
 from ..vocabulary import COMMUNITY, count_of, node_anchor, node_name, number, ordinal, value_text
 from .describe import measure_title
 from .inputs import NetworkPageInput
 from .site_map import PageFrame, network_page, node_view, nodes_page
 
-__all__ = ["NODE_VIEW_LIMIT", "NodeViewPage", "node_view_contexts", "node_view_limit"]
+__all__ = ["ELSEWHERE_SHOWN", "NODE_VIEW_LIMIT", "NodeViewPage", "node_appearances",
+           "node_view_contexts", "node_view_limit"]
 
 # Without [site] node_views, networks up to this many nodes get a page per node.
 NODE_VIEW_LIMIT = 2000
+# A node's page links the same node in at most this many other networks: the networks of its
+# series or sharing its node list first, then the others in study order. A study of hundreds of
+# team networks whose ids repeat (c1 in every team) would otherwise list hundreds on each page.
+ELSEWHERE_SHOWN = 12
+
+# Per node id, every network it is in with its position there, in study order.
+Appearances = dict[str, list[tuple[NetworkPageInput, int]]]
+
+
+def node_appearances(networks: list[NetworkPageInput]) -> Appearances:
+    """Where each node id appears: one pass over every network's nodes."""
+    found: Appearances = {}
+    for item in networks:
+        for position, node in enumerate(item.analysis.nodes.index):
+            found.setdefault(str(node), []).append((item, position))
+    return found
+
+
+def _related(one: NetworkConfig, other: NetworkConfig) -> bool:
+    """Waves of one series, or networks read from one node list: surely the same people."""
+    return ((one.series is not None and one.series == other.series)
+            or (one.nodes is not None and one.nodes == other.nodes))
 
 
 def node_view_limit(setting: bool | None) -> float:
@@ -73,6 +97,7 @@ class NodeViewPage:
     measures: tuple[MeasureRow, ...]
     ties: tuple[TieGroup, ...]
     elsewhere: tuple[Elsewhere, ...]
+    elsewhere_more: str  # "" or "3 more networks": where else the node is, not linked
     ego: EgoFigure
     ego_hrefs: tuple[str, ...]  # per node of the figure, its page
     ego_caption: str
@@ -134,21 +159,16 @@ def _tie_groups(directed: bool, out_rows: list[tuple[int, object]],
 
 
 def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: list[EgoFigure],
-                       others: list[tuple[NetworkPageInput, bool]]
-                       ) -> list[NodeViewPage]:
-    """The page of every node of ``item`` (``frames`` in node order). ``others`` are the
-    study's other networks, each with whether its nodes have pages, for links to the same node
-    there."""
+                       appearances: Appearances) -> list[NodeViewPage]:
+    """The page of every node of ``item`` (``frames`` in node order). ``appearances`` says
+    where else each node id is, for links to the same node there (its page when that network's
+    nodes have pages, else its row of the node table); at most ELSEWHERE_SHOWN links."""
     analysis = item.analysis
     nodes = analysis.nodes
     n = len(nodes)
     labels = [node_name(str(label), str(node)) for node, label in zip(nodes.index, nodes["label"])]
     measures = [m for m in analysis.measures.columns if m != COMMUNITY]
     ranked = {m: _ranks(analysis.measures[m]) for m in measures}
-    where_else = []
-    for other, views in others:
-        positions = {str(node): i for i, node in enumerate(other.analysis.nodes.index)}
-        where_else.append((other, views, positions))
     out_rows, in_rows = _neighbours(item)
     shown = {m: [number(v) for v in analysis.measures[m]] for m in measures}
     titles = {m: measure_title(m) for m in measures}
@@ -160,13 +180,15 @@ def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: lis
     href_of = [frames[0].href(node_view(item.id, v)) for v in range(n)] if frames else []
     pages = []
     for position, frame in enumerate(frames):
+        found = [(other, at) for other, at in appearances.get(str(nodes.index[position]), [])
+                 if other.id != item.id]
+        found.sort(key=lambda entry: not _related(item.config, entry[0].config))  # stable
         elsewhere = []
-        for other, views, positions in where_else:
-            at = positions.get(str(nodes.index[position]))
-            if at is not None:
-                target = (node_view(other.id, at) if views
-                          else f"{nodes_page(other.id)}#{node_anchor(at)}")
-                elsewhere.append(Elsewhere(other.title, frame.href(target)))
+        for other, at in found[:ELSEWHERE_SHOWN]:
+            target = (node_view(other.id, at) if other.ego is not None
+                      else f"{nodes_page(other.id)}#{node_anchor(at)}")
+            elsewhere.append(Elsewhere(other.title, frame.href(target)))
+        more = len(found) - len(elsewhere)
         rows = tuple(MeasureRow(titles[m], shown[m][position], ranked[m][0][position],
                                 ranked[m][1][position]) for m in measures)
         figure = ego[position]
@@ -184,7 +206,9 @@ def node_view_contexts(item: NetworkPageInput, frames: list[PageFrame], ego: lis
             community=communities[position],
             measures=rows, ties=_tie_groups(analysis.directed, out_rows[position],
                                             in_rows[position], href_of, labels),
-            elsewhere=tuple(elsewhere), ego=figure,
+            elsewhere=tuple(elsewhere),
+            elsewhere_more=count_of(more, "more network", "more networks") if more else "",
+            ego=figure,
             ego_hrefs=tuple(href_of[node.position] for node in figure.nodes),
             ego_caption=caption, weighted=analysis.weighted,
         ))

@@ -20,7 +20,7 @@ from .downloads import downloads_context
 from .inputs import NetworkPageInput
 from .methods import methods_context
 from .network_page import network_context
-from .node_view import node_view_contexts
+from .node_view import Appearances, node_appearances, node_view_contexts
 from .nodes_page import nodes_context
 from .notes import RenderedNote, render_markdown
 from .overview import StudyOverview, overview_context
@@ -211,6 +211,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
         site.frame(INDEX, study.title, scripts=(TABLE_SCRIPT,)), networks, overview,
         summary=summary_html, built=build_info.get("built", ""))))
 
+    appearances = node_appearances(networks)
     for item in networks:
         own = reuse.networks.get(item.id, "") if reuse else ""
         path = network_page(item.id)
@@ -228,7 +229,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
             frame = site.frame(path, f"{item.title}: communities", section=network_page(item.id))
             pages.append((path, "communities.html", communities_context(item, frame)))
         if item.ego is not None:
-            pages += _node_views(item, networks, site, keep, every_network)
+            pages += _node_views(item, appearances, site, keep, every_network)
 
     by_id = {item.id: item for item in networks}
     for compared in series:
@@ -290,7 +291,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
     return dict(sorted(output.items()))
 
 
-def _node_views(item: NetworkPageInput, networks: list[NetworkPageInput], site: SiteMap,
+def _node_views(item: NetworkPageInput, appearances: Appearances, site: SiteMap,
                 keep: Callable[..., bool], every_network: list[str]
                 ) -> list[tuple[str, str, object]]:
     """The page of every node of ``item`` that ``keep`` does not already hold."""
@@ -302,8 +303,7 @@ def _node_views(item: NetworkPageInput, networks: list[NetworkPageInput], site: 
         return []
     frames = [site.frame(paths[p], f"{labels[p]} in {item.title}",
                          section=network_page(item.id)) for p in range(len(paths))]
-    others = [(other, other.ego is not None) for other in networks if other.id != item.id]
-    contexts = node_view_contexts(item, frames, list(item.ego), others)
+    contexts = node_view_contexts(item, frames, list(item.ego), appearances)
     return [(paths[p], "node.html", contexts[p]) for p in wanted]
 
 
