@@ -623,7 +623,18 @@ def test_ids_equal_apart_from_case_stay_apart_with_a_warning(tmp_path):
     clean = load_network(edge_study(tmp_path, "source,target\na,b\nA,b\n"))
     assert list(clean.nodes.index) == ["A", "a", "b"]
     warning = only(clean.checks.findings, "warning")
-    assert "'A' and 'a'" in warning.message
+    # Each spelling with the line that first writes it (a ends line 2, A line 3).
+    assert "'A' (line 3) and 'a' (line 2)" in warning.message
+    assert (warning.file, warning.line) == (EDGES, 3)
+
+
+def test_ids_equal_apart_from_case_are_located_in_the_node_list_and_the_ties(tmp_path):
+    # 'Ana' is listed on line 2 of the node list; 'ana' is only in the ties, on line 3.
+    clean = load_network(edge_study(tmp_path, "source,target\nAna,b\nana,b\n",
+                                    nodes="id\nAna\nb\n"))
+    warning = only(clean.checks.findings, "warning")
+    assert "'Ana' (line 2) and 'ana' (data/edges.csv, line 3)" in warning.message
+    assert (warning.file, warning.line) == ("data/nodes.csv", 2)
 
 
 def test_unused_edge_columns_are_named_with_a_hint_when_a_weight_key_is_missing(tmp_path):

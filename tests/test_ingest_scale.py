@@ -110,7 +110,8 @@ def test_reading_gives_what_the_row_by_row_reader_recorded():
     # columnar ones (see tests/fixtures/ingest_cases.py): 190 invented studies, cleaned
     # networks with their dtypes, findings and refusals. Five cases were re-recorded on purpose
     # when a network whose node list and edge list both hold errors began to list both files'
-    # errors together (the node list's first, as recorded before).
+    # errors together (the node list's first, as recorded before), and the 22 warnings of ids
+    # equal but for case when they began to give the line of each spelling.
     recorded = json.loads(ingest_cases.RECORDED.read_text())
     now = json.loads(json.dumps(ingest_cases.summaries()))
     assert len(now) == len(recorded) == len(ingest_cases.CASES)

@@ -836,7 +836,8 @@ def test_checks_page_shows_warnings_in_their_own_group(tmp_path):
     build_study(root, output=tmp_path / "site")
     html = (tmp_path / "site" / "checks.html").read_text(encoding="utf-8")
     warnings = html[html.index('id="network-n-warning"'):html.index('id="network-n-fix"')]
-    assert "differ only in upper or lower case" in warnings and "&#39;A&#39; and &#39;a&#39;" in warnings
+    assert "differ only in upper or lower case" in warnings
+    assert "&#39;A&#39; (line 3) and &#39;a&#39; (line 2)" in warnings
 
 
 # ---------------------------------------------------------------------------------------------

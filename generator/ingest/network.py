@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from fractions import Fraction
 from pathlib import Path
@@ -674,8 +675,12 @@ def _refuse_extra_header_rows(frame: pd.DataFrame, lines: dict[str, int], tie_id
     checks.raise_if_errors()
 
 
-def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) -> None:
-    """'a' and 'A' are two nodes; say so, since a person typed two ways is a common slip."""
+def _warn_ids_equal_but_for_case(ids: list[str], file: str,
+                                 where: Callable[[str], tuple[str, int | None, str]],
+                                 checks: DataChecks) -> None:
+    """'a' and 'A' are two nodes; say so, since a person typed two ways is a common slip.
+    ``where`` gives the file, line and unit where an id is first written; the finding is on
+    ``file`` (the node list when there is one), at the first line of the first pair there."""
     folded = [node.casefold() for node in ids]
     clashing = np.flatnonzero(pd.Series(folded, dtype=object).duplicated(keep=False).to_numpy())
     if not len(clashing):
@@ -686,12 +691,22 @@ def _warn_ids_equal_but_for_case(ids: list[str], name: str, checks: DataChecks) 
     clashes = [g for g in groups.values() if len(g) > 1]
     if not clashes:
         return
-    shown = "; ".join(" and ".join(repr(n) for n in g) for g in clashes[:MAX_LINES_LISTED])
+
+    def located(node: str) -> str:
+        name, line, unit = where(node)
+        if line is None:
+            return repr(node) if name == file else f"{node!r} ({name})"
+        return f"{node!r} ({unit} {line})" if name == file else f"{node!r} ({name}, {unit} {line})"
+
+    shown = "; ".join(" and ".join(located(n) for n in g) for g in clashes[:MAX_LINES_LISTED])
     more = f" and {len(clashes) - MAX_LINES_LISTED} more" if len(clashes) > MAX_LINES_LISTED else ""
+    in_file = [where(n) for g in clashes[:MAX_LINES_LISTED] for n in g]
+    first = next(((line, unit) for name, line, unit in in_file if name == file and line), None)
     checks.add(Finding(
-        "warning", name, f"{count_of(len(clashes), 'set', 'sets')} of ids differ only in upper or "
+        "warning", file, f"{count_of(len(clashes), 'set', 'sets')} of ids differ only in upper or "
         f"lower case and are read as different nodes: {shown}{more}; if they are the same node, "
-        "write the id the same way in every file", value=clashes[0][0], count=len(clashes)))
+        "write the id the same way in every file", value=clashes[0][0], count=len(clashes),
+        line=first[0] if first else None, unit=first[1] if first else "line"))
 
 
 def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
@@ -757,8 +772,17 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
                                unit=unit))
 
     all_ids = natural_order(list(set(known.tolist()) | listed))
-    _warn_ids_equal_but_for_case(all_ids, study.relative(net.nodes) if net.nodes else data_name,
-                                 checks)
+
+    def first_written(node: str) -> tuple[str, int | None, str]:
+        if node in node_lines:
+            return nodes_name, node_lines[node], node_unit
+        code = np.flatnonzero(named == node)
+        if not len(code):  # a matrix row with no ties
+            return data_name, None, ties.unit
+        place = int(np.flatnonzero(codes == code[0])[0])
+        return data_name, int(ties.line[place // 2]), ties.unit
+
+    _warn_ids_equal_but_for_case(all_ids, nodes_name, first_written, checks)
     place = pd.Index(all_ids, dtype=object).get_indexer(pd.Index(named, dtype=object))[codes]
     edges, touched = _clean_ties(ties, place[0::2], place[1::2], net, data_name, all_ids,
                                  weighted, checks)
