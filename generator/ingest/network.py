@@ -230,20 +230,21 @@ def _typed_attributes(frame: pd.DataFrame, decimal: str = ".") -> pd.DataFrame:
 
 def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, name: str,
                     lines: dict[str, int], label_column: str | None, checks: DataChecks,
-                    unit: str = "line") -> pd.DataFrame:
+                    study: StudyConfig, unit: str = "line") -> pd.DataFrame:
     """Apply study.toml's ``categorical`` and ``numeric`` declarations: a categorical column
     keeps its values as text (codes 0-3 are four groups, not a scale); every filled cell of a
-    numeric one must be a number. Raises DataError naming file, line, column and value."""
+    numeric one must be a number. Raises DataError naming file, line, column and value, or
+    ConfigError naming the study.toml key that declares a column the node list lacks."""
     columns = [c for c in attrs.columns if c != label_column]
     for declared, kind in ((net.categorical, "categorical"), (net.numeric, "numeric")):
         for column in declared:
             if column not in columns:
                 listed = ", ".join(repr(c) for c in columns) or "none"
-                checks.add(Finding("error", name, f"{kind} = [...] in study.toml names "
-                                   f"{column!r}, which is not a node attribute of this node list "
-                                   f"(attribute columns: {listed})", line=1, column=column,
-                                   value=column))
-    checks.raise_if_errors()
+                where = (f"the node list {name}" if net.nodes is not None
+                         else "this network (it has no node list)")
+                raise network_setting_error(study, net.id, kind, f"{column!r} is not a node "
+                                            f"attribute of {where} (attribute columns: "
+                                            f"{listed})")
     typed: pd.DataFrame = attrs.copy()
     for column in net.categorical:
         typed[column] = raw[column].astype("string").str.strip().replace({"": pd.NA})
@@ -798,7 +799,7 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
     attrs = _typed_attributes(node_frame, net.decimal)
     if net.categorical or net.numeric:
         attrs = _declared_types(attrs, node_frame, net, nodes_name, node_lines, label_column,
-                                checks, node_unit)
+                                checks, study, node_unit)
     # Labels stay exactly as written ("007" is not a number); empty or missing labels show the id.
     if label_column == net.node_id:
         labels = pd.Series(attrs.index, index=attrs.index, dtype="string")
