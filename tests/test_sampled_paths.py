@@ -307,6 +307,10 @@ def _rows(path) -> list[dict[str, str]]:
     return list(csv.DictReader(io.StringIO(path.read_text("utf-8"))))
 
 
+def rows_of(path) -> dict[str, dict[str, str]]:
+    return {row["statistic"]: row for row in _rows(path)}
+
+
 @pytest.fixture(scope="module")
 def mixed(tmp_path_factory):
     """Wave one (7 nodes) exact, wave two (8 nodes) from 3 sampled sources."""
@@ -360,8 +364,18 @@ def test_the_exact_wave_keeps_its_two_columns_and_the_study_table_marks_the_esti
         "statistic", "value"]
     waves = {f["name"]: f["description"]
              for f in resources["series-team-statistics"]["schema"]["fields"]}
-    assert "files/two/statistics.csv says so" in waves["two"]
+    assert "two_estimate says so" in waves["two"]
     assert "says so" not in waves["one"]
+    assert list(waves)[:5] == ["statistic", "one", "two", "two_standard_error", "two_estimate"]
+    # The series table carries the sampled wave's standard errors and estimates as its own
+    # statistics.csv writes them.
+    series = {r["statistic"]: r for r in _rows(mixed / "files/series/team/statistics.csv")}
+    assert list(series["diameter"]) == ["statistic", "one", "two", "two_standard_error",
+                                        "two_estimate"]
+    for name, row in rows_of(mixed / "files/two/statistics.csv").items():
+        assert (series[name]["two"], series[name]["two_standard_error"],
+                series[name]["two_estimate"]) == (row["value"], row["standard_error"],
+                                                  row["estimate"])
     study_fields = {f["name"] for f in resources["study-statistics"]["schema"]["fields"]}
     assert {"diameter_estimate", "average_path_length_standard_error"} <= study_fields
     import frictionless

@@ -31,7 +31,7 @@ from .graphml import graphml_bytes
 
 __all__ = ["ALL_DATA_SUFFIXES", "all_data_zip", "communities_csv", "datapackage_json", "edges_csv",
            "graphml", "has_estimates", "mixing_csv", "mixing_files", "network_files", "nodes_csv",
-           "significance_csv", "statistics_csv", "study_statistics_csv",
+           "significance_csv", "statistic_estimate", "statistics_csv", "study_statistics_csv",
            "study_statistics_resource"]
 
 
@@ -72,6 +72,16 @@ def _estimate_text(estimate: str | None, value: float | None, sampling: PathSamp
     if sampling is None:
         return estimate_label(None, sources=0, seed=0)
     return estimate_label(estimate, sources=sampling.sources, seed=sampling.seed)
+
+
+def statistic_estimate(analysis: NetworkAnalysis, name: str) -> tuple[str, str]:
+    """(standard error, how it was found) of one statistic, as statistics.csv writes them;
+    ("", "") when ``analysis`` has no such statistic."""
+    found = next((st for st in analysis.statistics if st.name == name), None)
+    if found is None:
+        return "", ""
+    return (exact_text(found.standard_error),
+            _estimate_text(found.estimate, found.value, analysis.sampling))
 
 
 def statistics_csv(analysis: NetworkAnalysis) -> bytes:

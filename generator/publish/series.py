@@ -10,8 +10,8 @@ import pandas as pd
 
 from ..analyse import NetworkAnalysis
 from ..analyse.compare import SeriesComparison
-from ..vocabulary import COMMUNITY, WHOLE_MEASURES, exact_text
-from .downloads import has_estimates
+from ..vocabulary import COMMUNITY, ESTIMATE_COLUMNS, WHOLE_MEASURES, exact_text
+from .downloads import has_estimates, statistic_estimate
 
 __all__ = ["SERIES_FILES", "series_files", "series_resources"]
 
@@ -47,6 +47,13 @@ def series_files(comparison: SeriesComparison, analyses: Mapping[str, NetworkAna
     statistics = pd.DataFrame(
         [[name, *(exact_text(v) for v in values)] for name, values in comparison.statistics],
         columns=["statistic", *comparison.networks])
+    for network in reversed(comparison.networks):  # a wave's estimates follow its values
+        if has_estimates(analyses[network]):
+            at = statistics.columns.get_loc(network) + 1
+            found = [statistic_estimate(analyses[network], name)
+                     for name, _ in comparison.statistics]
+            for offset, (part, _) in enumerate(ESTIMATE_COLUMNS):
+                statistics.insert(at + offset, f"{network}_{part}", [f[offset] for f in found])
     ties = pd.DataFrame([(t.earlier, t.later, t.kept, t.added, t.dropped, exact_text(t.jaccard))
                          for t in comparison.ties],
                         columns=["from", "to", "kept", "added", "dropped", "jaccard"])
@@ -77,11 +84,16 @@ def series_resources(comparison: SeriesComparison, analyses: Mapping[str, Networ
     def field(name: str, kind: str, description: str) -> dict[str, str]:
         return {"name": name, "type": kind, "description": description}
 
-    waves = [field(i, "number", f"Value in {analyses[i].title} (wave {w}); empty where not "
-                   "defined." + (f" Sampled or a lower bound where files/{i}/statistics.csv "
-                                 "says so in its estimate column." if has_estimates(analyses[i])
-                                 else ""))
-             for i, w in zip(comparison.networks, comparison.waves)]
+    waves = []
+    for i, w in zip(comparison.networks, comparison.waves):
+        estimated = has_estimates(analyses[i])
+        waves.append(field(i, "number", f"Value in {analyses[i].title} (wave {w}); empty where "
+                           "not defined." + (f" Sampled or a lower bound where {i}_estimate says "
+                                             "so." if estimated else "")))
+        if estimated:
+            waves += [field(f"{i}_{part}", "number" if part == "standard_error" else "string",
+                            f"In {analyses[i].title}: {meaning}.")
+                      for part, meaning in ESTIMATE_COLUMNS]
     node_fields = [field("id", "string", "Node id as written in the input."),
                    field("label", "string", "Display label.")]
     for column in _node_table(comparison, analyses).columns[2:]:
