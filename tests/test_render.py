@@ -566,6 +566,28 @@ def test_nodes_page_has_one_row_per_node_and_sort_values(built):
     assert f'data-value="{pagerank!r}">{number(pagerank)}<' in advice
 
 
+def test_the_network_page_lists_the_largest_communities_and_says_where_the_rest_are(tmp_path):
+    from conftest import edge_study
+
+    from generator.build import build_study
+    from generator.render.network_page import COMMUNITY_ROWS
+
+    # COMMUNITY_ROWS + 5 separate triangles: each is a community of its own (any modularity
+    # method finds the components of a graph of disjoint cliques).
+    triangles = COMMUNITY_ROWS + 5
+    rows = [f"t{k}a,t{k}b\nt{k}b,t{k}c\nt{k}c,t{k}a" for k in range(triangles)]
+    study = edge_study(tmp_path / "study", "source,target\n" + "\n".join(rows) + "\n")
+    site = build_study(study, output=tmp_path / "site").output
+    page = (site / "networks/net/index.html").read_text("utf-8")
+    sizes = page[page.index("<h3>Community sizes</h3>"):]
+    sizes = sizes[:sizes.index("</table>")]
+    assert sizes.count('<th scope="row">') == COMMUNITY_ROWS
+    assert (f"The {COMMUNITY_ROWS} largest of the {triangles} communities of two or more nodes "
+            "are listed") in page
+    listed = (site / "files/net/communities.csv").read_text("utf-8").splitlines()
+    assert len(listed) == triangles + 1  # the download holds every one
+
+
 def test_network_page_shows_figures_top_nodes_and_communities(built):
     _, items, site = built
     html = site["networks/advice/index.html"].decode()

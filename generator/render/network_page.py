@@ -106,7 +106,8 @@ class CommunityView:
     runs: int
     seed: int
     count: int
-    rows: tuple[CommunityRow, ...]  # communities of two or more nodes
+    rows: tuple[CommunityRow, ...]  # the largest communities of two or more nodes
+    rows_left_out: str  # "" or a sentence: how many are not listed here, and where they are
     single_node: int  # communities of one node (isolates and loosely tied nodes)
     single_node_note: str  # a sentence about them, empty when there are none
     modularity: str
@@ -230,6 +231,11 @@ def _optional(value: float | None) -> str:
     return "not defined" if value is None or is_missing(value) else number(value)
 
 
+# The network page lists the sizes of this many of the largest communities; a network of 10^6
+# ties can have hundreds, which the communities page and communities.csv hold.
+COMMUNITY_ROWS = 20
+
+
 def community_view(result: CommunityResult) -> CommunityView:
     total = sum(result.sizes) or 1
     single = sum(1 for size in result.sizes if size == 1)
@@ -242,6 +248,12 @@ def community_view(result: CommunityResult) -> CommunityView:
                        "loosely tied to any group).")
     rows = tuple(CommunityRow(rank, size, share(size / total))
                  for rank, size in enumerate(result.sizes, start=1) if size > 1)
+    left_out = ""
+    if len(rows) > COMMUNITY_ROWS:
+        left_out = (f"The {COMMUNITY_ROWS} largest of the {count(len(rows))} communities of two "
+                    "or more nodes are listed; the communities page and the communities download "
+                    "list every one.")
+        rows = rows[:COMMUNITY_ROWS]
     return CommunityView(
         method=method_title(result.method),
         resolution=number(result.resolution),
@@ -249,6 +261,7 @@ def community_view(result: CommunityResult) -> CommunityView:
         seed=result.seed,
         count=result.count,
         rows=rows,
+        rows_left_out=left_out,
         single_node=single,
         single_node_note=single_note,
         modularity=_optional(result.modularity),
