@@ -10,7 +10,8 @@ import igraph as ig
 from .graph import undirected_version
 from .seeding import seeded_igraph
 
-__all__ = ["LARGE_LAYOUT_NODES", "LAYOUT_ITERATIONS", "layout_iterations", "network_layout"]
+__all__ = ["LARGE_LAYOUT_NODES", "LARGE_LAYOUT_TRAVEL", "LAYOUT_ITERATIONS", "layout_iterations",
+           "network_layout"]
 
 # Above this many nodes repulsion is computed on a grid (only nearby nodes repel), which is ~25x
 # faster on 3,000 nodes and looks the same at figure size; igraph's own "auto" uses 1,000 too.
@@ -23,6 +24,11 @@ LAYOUT_ITERATIONS = 1000  # Fruchterman-Reingold iterations up to LARGE_LAYOUT_N
 LARGE_LAYOUT_NODES = 5_000
 LAYOUT_WORK = LARGE_LAYOUT_NODES * LAYOUT_ITERATIONS
 MIN_ITERATIONS = 50
+# From the community start a node may move at most this share of the drawing's side in all:
+# the iterations refine the communities' placement instead of redoing it. (igraph's default
+# first step, sqrt(n) / 10 along each axis, cooling to 0, adds up to sqrt(n) * iterations / 20:
+# with 50 iterations, 2.5 times the side, enough to stir every community into one blob.)
+LARGE_LAYOUT_TRAVEL = 0.1
 
 
 def layout_iterations(tied_nodes: int) -> int:
@@ -94,17 +100,20 @@ def network_layout(graph: ig.Graph, *, seed: int, weighted: bool,
         start = random.Random(f"layout:{seed}")
         iterations = layout_iterations(len(tied))
         with seeded_igraph(f"layout:{seed}"):
+            side = math.sqrt(len(tied))
+            step = side / 10  # igraph's default first step
             if len(tied) > LARGE_LAYOUT_NODES and membership is not None:
                 initial = _community_start(sub, _renumbered([membership[v] for v in tied]),
                                            start)
+                # The step cools linearly to 0, so the moves add up to step * iterations / 2.
+                step = 2 * LARGE_LAYOUT_TRAVEL * side / iterations
             else:
                 # Spread the start like igraph's own (a square of side ~sqrt(n)) so grid cells
                 # are useful.
-                side = math.sqrt(len(tied))
                 initial = [[start.uniform(0, side), start.uniform(0, side)] for _ in tied]
             coords = sub.layout_fruchterman_reingold(
                 seed=initial, weights=sub.es["strength"] if weighted else None,
-                niter=iterations, grid=len(tied) > GRID_ABOVE)
+                niter=iterations, start_temp=step, grid=len(tied) > GRID_ABOVE)
         xs, ys = [p[0] for p in coords], [p[1] for p in coords]
         x0, y0 = min(xs), min(ys)
         span = max(max(xs) - x0, max(ys) - y0) or 1.0

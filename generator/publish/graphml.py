@@ -28,18 +28,15 @@ _HEAD = ('<graphml xmlns="http://graphml.graphdrawing.org/xmlns" '
 _PYTHON_TYPES = {str: "string", int: "long", float: "double", bool: "boolean"}
 
 
-def _text(values: pd.Series) -> pd.Series:
+def _text(value: str) -> str:
     """Character data escaped as xml.etree does (&, <, >)."""
-    return (values.str.replace("&", "&amp;", regex=False).str.replace("<", "&lt;", regex=False)
-            .str.replace(">", "&gt;", regex=False))
+    return value.replace("&", "&amp;").replace("<", "&lt;").replace(">", "&gt;")
 
 
-def _attribute(values: pd.Series) -> pd.Series:
+def _attribute(value: str) -> str:
     """An attribute value escaped as xml.etree does."""
-    escaped = _text(values).str.replace('"', "&quot;", regex=False)
-    for raw, entity in (("\r", "&#13;"), ("\n", "&#10;"), ("\t", "&#09;")):
-        escaped = escaped.str.replace(raw, entity, regex=False)
-    return escaped
+    return (_text(value).replace('"', "&quot;").replace("\r", "&#13;").replace("\n", "&#10;")
+            .replace("\t", "&#09;"))
 
 
 def _plain(value: object) -> object | None:
@@ -49,41 +46,29 @@ def _plain(value: object) -> object | None:
     return item() if callable(item) else value
 
 
-def _typed(column: pd.Series) -> tuple[pd.Series, pd.Series, pd.Series]:
-    """(present, text, xml type) of every value of one column."""
+def _typed(column: pd.Series) -> tuple[list[bool], list[str], list[str]]:
+    """(present, text, xml type) of every value of one column, as plain lists: per-column
+    pandas operations cost more than the values themselves on the small networks most studies
+    hold, and a list comprehension is as quick as pandas' string methods on large ones."""
     dtype = column.dtype
+    n = len(column)
     if pd.api.types.is_bool_dtype(dtype) and not column.isna().any():
-        present = pd.Series(True, index=column.index)
-        return present, column.map(str), pd.Series("boolean", index=column.index)
+        return [True] * n, [str(v) for v in column.tolist()], ["boolean"] * n
     if pd.api.types.is_integer_dtype(dtype) or pd.api.types.is_float_dtype(dtype):
-        present = column.notna()
+        mask = column.notna().to_numpy()
         kind = "long" if pd.api.types.is_integer_dtype(dtype) else "double"
-        values = column[present]
+        values = column[mask]
         if kind == "long":
-            text = pd.Series(values.astype("int64").to_numpy().astype(str), index=values.index)
+            written = values.astype("int64").to_numpy().astype(str).tolist()
         else:
-            text = pd.Series([repr(float(v)) for v in values.to_numpy(dtype=float)],
-                             index=values.index, dtype=object)
-        full = pd.Series("", index=column.index, dtype=object)
-        full[present] = text
-        return present, full, pd.Series(kind, index=column.index)
+            written = [repr(v) for v in values.to_numpy(dtype=float).tolist()]
+        text = [""] * n
+        for position, value in zip(np.flatnonzero(mask).tolist(), written):
+            text[position] = value
+        return mask.tolist(), text, [kind] * n
     plain = [_plain(v) for v in column.tolist()]
-    present = pd.Series([v is not None for v in plain], index=column.index)
-    text = pd.Series(["" if v is None else str(v) for v in plain], index=column.index,
-                     dtype=object)
-    kinds = pd.Series(["" if v is None else _PYTHON_TYPES[type(v)] for v in plain],
-                      index=column.index, dtype=object)
-    return present, text, kinds
-
-
-def _data(key: pd.Series | str, text: pd.Series, indent: str, *, escape: bool) -> pd.Series:
-    element = (indent + '<data key="' + key + '"' if isinstance(key, pd.Series)
-               else pd.Series(f'{indent}<data key="{key}"', index=text.index, dtype=object))
-    filled = text != ""
-    written = _text(text) if escape else text
-    data: pd.Series = element.where(~filled, element + ">" + written + "</data>\n").where(
-        filled, element + " />\n")
-    return data
+    return ([v is not None for v in plain], ["" if v is None else str(v) for v in plain],
+            ["" if v is None else _PYTHON_TYPES[type(v)] for v in plain])
 
 
 def _edge_order(sources: np.ndarray, targets: np.ndarray, directed: bool
@@ -95,9 +80,26 @@ def _edge_order(sources: np.ndarray, targets: np.ndarray, directed: bool
     return order, first[order], second[order]
 
 
+def _column_data(name: str, typed: tuple[list[bool], list[str], list[str]],
+                 keys: dict[tuple[str, str, str], str]) -> list[str]:
+    """Each node's ``<data>`` element of one column ("" where the value is missing)."""
+    present, text, kinds = typed
+    numeric = all(kind in ("long", "double") for kind in kinds)  # numbers need no escaping
+    written = text if numeric else [_text(value) for value in text]
+    data = []
+    for here, value, kind in zip(present, written, kinds):
+        if not here:
+            data.append("")
+            continue
+        key = keys.get((name, kind, "node"), "")
+        data.append(f'      <data key="{key}">{value}</data>\n' if value
+                    else f'      <data key="{key}" />\n')
+    return data
+
+
 def _lines(table: pd.DataFrame, edges: pd.DataFrame, *, directed: bool, title: str
            ) -> Iterator[str]:
-    ids = table["id"].astype(str)
+    ids = [str(v) for v in table["id"].tolist()]
     columns = [c for c in table.columns if c != "id"]
     typed = [_typed(table[c]) for c in columns]
     # Keys in the order networkx makes them: the title, node attributes by first appearance
@@ -105,9 +107,11 @@ def _lines(table: pd.DataFrame, edges: pd.DataFrame, *, directed: bool, title: s
     keys: dict[tuple[str, str, str], str] = {("title", "string", "graph"): "d0"}
     found = []
     for position, (name, (present, _, kinds)) in enumerate(zip(columns, typed)):
-        for kind in pd.unique(kinds[present]):
-            first = int(np.flatnonzero((present & (kinds == kind)).to_numpy())[0])
-            found.append((first, position, str(name), str(kind)))
+        first: dict[str, int] = {}
+        for node, (here, kind) in enumerate(zip(present, kinds)):
+            if here and kind not in first:
+                first[kind] = node
+        found += [(node, position, str(name), kind) for kind, node in first.items()]
     for _, _, name, kind in sorted(found):
         keys[(name, kind, "node")] = f"d{len(keys)}"
     weighted = "weight" in edges.columns
@@ -115,38 +119,31 @@ def _lines(table: pd.DataFrame, edges: pd.DataFrame, *, directed: bool, title: s
         keys[("weight", "double", "edge")] = f"d{len(keys)}"
     yield _HEAD
     for (name, kind, scope), made in reversed(keys.items()):
-        yield (f'  <key id="{made}" for="{scope}" attr.name="{_attribute(pd.Series([name]))[0]}"'
+        yield (f'  <key id="{made}" for="{scope}" attr.name="{_attribute(name)}"'
                f' attr.type="{kind}" />')
     yield f'  <graph edgedefault="{"directed" if directed else "undirected"}">'
-    body = pd.Series("", index=table.index, dtype=object)
-    for name, (present, text, kinds) in zip(columns, typed):
-        single = pd.unique(kinds[present])
-        if len(single) == 1:  # one type in the column (always so for numbers): one key
-            key: pd.Series | str = keys[(str(name), str(single[0]), "node")]
-        else:
-            key = kinds.map(lambda kind, name=str(name): keys.get((name, kind, "node"), ""))
-        numeric = bool(kinds.isin(["long", "double"]).all())  # numbers need no escaping
-        body = body + _data(key, text, "      ", escape=not numeric).where(present, "")
-    escaped = _attribute(ids)
-    node_opening = '    <node id="' + escaped + '"'
-    nodes = node_opening.where(body == "", node_opening + ">\n" + body + "    </node>").where(
-        body != "", node_opening + " />")
-    yield from nodes.tolist()
-    position = pd.Series(np.arange(len(ids)), index=ids.to_numpy())
+    parts = [_column_data(str(name), values, keys) for name, values in zip(columns, typed)]
+    bodies = ["".join(row) for row in zip(*parts)] if parts else [""] * len(ids)
+    escaped = [_attribute(node) for node in ids]  # each id escaped once, not once per tie
+    for element_id, body in zip(escaped, bodies):
+        yield (f'    <node id="{element_id}">\n{body}    </node>' if body
+               else f'    <node id="{element_id}" />')
+    position = pd.Series(np.arange(len(ids)), index=pd.Index(ids, dtype=object))
     sources = position.reindex(edges["source"].astype(str)).to_numpy()
     targets = position.reindex(edges["target"].astype(str)).to_numpy()
     order, tails, heads = _edge_order(sources, targets, directed)
-    names = escaped.to_numpy(dtype=object)  # each id escaped once, not once per tie
-    opening = ('    <edge source="' + pd.Series(names[tails], dtype=object) + '" target="'
-               + pd.Series(names[heads], dtype=object) + '"')
+    names = np.array(escaped, dtype=object)
+    ends = zip(names[tails].tolist(), names[heads].tolist())
     if weighted:
-        weights = edges["weight"].to_numpy(dtype=float)[order]
-        weight = pd.Series([repr(float(w)) for w in weights], dtype=object)
-        yield from (opening + '>\n      <data key="' + keys[("weight", "double", "edge")] + '">'
-                    + weight + "</data>\n    </edge>").tolist()
+        key = keys[("weight", "double", "edge")]
+        weights = edges["weight"].to_numpy(dtype=float)[order].tolist()
+        for (tail, head), weight in zip(ends, weights):
+            yield (f'    <edge source="{tail}" target="{head}">\n      <data key="{key}">'
+                   f"{weight!r}</data>\n    </edge>")
     else:
-        yield from (opening + " />").tolist()
-    yield f'    <data key="d0">{_text(pd.Series([title], dtype=object))[0]}</data>'
+        for tail, head in ends:
+            yield f'    <edge source="{tail}" target="{head}" />'
+    yield f'    <data key="d0">{_text(title)}</data>'
     yield "  </graph>"
     yield "</graphml>"
 

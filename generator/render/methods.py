@@ -7,7 +7,7 @@ from dataclasses import dataclass, replace
 from urllib.parse import quote
 
 from ..analyse import NetworkAnalysis
-from ..analyse.layout import LARGE_LAYOUT_NODES, layout_iterations
+from ..analyse.layout import LARGE_LAYOUT_NODES, LARGE_LAYOUT_TRAVEL, layout_iterations
 from ..config import EdgeListSource
 from ..draw.community_map import LARGE_MAP_NODES
 from ..vocabulary import (
@@ -20,6 +20,7 @@ from ..vocabulary import (
     list_in_words,
     measure,
     number,
+    share,
     significance_method,
     statistic,
 )
@@ -314,7 +315,10 @@ def _layout_text(analysis: NetworkAnalysis, pull: str) -> str:
         start = (f"in {number(iterations)} iterations (a budget for {number(tied)} nodes with "
                  "ties, on a grid that lets only nearby nodes repel), started from the layout of "
                  "the communities' own graph with each member placed at random near its "
-                 f"community, drawn with the study seed {analysis.seed}")
+                 f"community, drawn with the study seed {analysis.seed}; the steps are kept so "
+                 f"small that a node moves at most {share(LARGE_LAYOUT_TRAVEL)} of the drawing's "
+                 "width in all, so the iterations refine where the communities are placed "
+                 "instead of mixing them")
     else:
         start = (f"in {number(iterations)} iterations, started from positions drawn with the "
                  f"study seed {analysis.seed}")
