@@ -16,6 +16,7 @@ from .mixing import draw_mixing
 from .network_map import draw_map
 from .node_encoding import colour_nodes
 from .null_models import draw_null_tests
+from .style import drawing_style
 
 __all__ = ["Figure", "FigureSettings", "draw_network"]
 
@@ -38,13 +39,14 @@ def draw_network(analysis: NetworkAnalysis, settings: FigureSettings = DEFAULT_S
         # With pyplot already loaded (a notebook), its backend is left alone: we never use it.
         matplotlib.use("Agg")
     colours = colour_nodes(analysis, settings)
-    figures = [draw_map(analysis, settings, colours), draw_degree(analysis)]
-    figures += [draw_centrality(analysis, measure) for measure in HISTOGRAM_MEASURES
-                if measure in analysis.measures.columns]
-    figures.append(draw_communities(analysis, colours))
-    figures += draw_mixing(analysis)
-    coassignment = draw_coassignment(analysis)
-    if coassignment is not None:
-        figures.append(coassignment)
-    figures += draw_null_tests(analysis)
+    with drawing_style():  # applied once for every figure of the network
+        figures = [draw_map(analysis, settings, colours), draw_degree(analysis)]
+        figures += [draw_centrality(analysis, measure) for measure in HISTOGRAM_MEASURES
+                    if measure in analysis.measures.columns]
+        figures.append(draw_communities(analysis, colours))
+        figures += draw_mixing(analysis)
+        coassignment = draw_coassignment(analysis)
+        if coassignment is not None:
+            figures.append(coassignment)
+        figures += draw_null_tests(analysis)
     return figures

@@ -15,6 +15,7 @@ and the density image is one embedded raster.
 from __future__ import annotations
 
 import numpy as np
+from matplotlib import patheffects
 from matplotlib.collections import LineCollection
 from matplotlib.colors import LogNorm
 
@@ -35,6 +36,7 @@ DENSITY_BINS = 240  # cells along each side of the density image
 _POINTS_PER_TIE = 9  # points sampled along each tie for the density image
 _LABELLED = 5  # the largest communities named on the map
 _AREA = (30.0, 1400.0)  # marker areas (points^2) of the smallest and the largest community
+_COVER = 0.3  # the circles' areas add up to at most this share of their panel
 _PANEL = 4.3  # inches, each panel's side
 
 
@@ -119,7 +121,12 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
     links = sorted(between, key=lambda p: (-between[p], p))[:MAP_COMMUNITY_LINKS]
     largest = max(sizes) if sizes else 1
     low, high = _AREA
-    areas = [low + (high - low) * sizes[c] / largest for c in shown]
+    areas = np.array([low + (high - low) * sizes[c] / largest for c in shown])
+    # Many communities of similar size would cover the panel several times over: the circles
+    # shrink together until they fill at most _COVER of it, keeping their proportions.
+    panel_area = (_PANEL * 72.0) ** 2  # points^2
+    if areas.sum() > _COVER * panel_area:
+        areas *= _COVER * panel_area / areas.sum()
     framed = xy[tied] if tied.any() else xy
     grid, extent = _density(xy, sources, targets, framed) if len(xy) else (
         np.zeros((1, 1)), (0.0, 1.0, 0.0, 1.0))
@@ -142,12 +149,17 @@ def draw_community_map(analysis: NetworkAnalysis, settings: FigureSettings = DEF
             left.add_collection(LineCollection(
                 [(tuple(centres[a]), tuple(centres[b])) for a, b in links], colors=TIE_GREY,
                 linewidths=widths, zorder=1, capstyle="round"), autolim=False)
-        left.scatter(centres[shown, 0], centres[shown, 1], s=areas,
-                     c=[colours[c] for c in shown], edgecolors=NODE_EDGE, linewidths=0.6,
-                     zorder=2)
-        for c in shown[:_LABELLED]:
+        # ``shown`` runs largest first: the unlabelled circles are drawn largest first (smaller
+        # ones over larger), then the labelled largest over all of them, so none is hidden.
+        order = [*range(_LABELLED, len(shown)), *range(min(_LABELLED, len(shown)))]
+        left.scatter(centres[shown, 0][order], centres[shown, 1][order], s=areas[order],
+                     c=[colours[shown[i]] for i in order], edgecolors=NODE_EDGE,
+                     linewidths=0.6, zorder=2)
+        halo = [patheffects.withStroke(linewidth=2.5, foreground="white")]
+        for c in shown[:_LABELLED]:  # above every circle, with a white rim to stay legible
             left.annotate(f"{c + 1}", xy=tuple(centres[c]), ha="center", va="center",
-                          fontsize=8, fontweight="bold", color=INK, zorder=3)
+                          fontsize=8, fontweight="bold", color=INK, zorder=4,
+                          path_effects=halo)
         left.set_title("communities and the ties between them", fontsize=9, loc="left",
                        color=QUIET_INK)
         filled = grid[grid > 0]
