@@ -812,6 +812,30 @@ def test_top_tables_rank_ties_together_and_count_ties_past_the_cut(built):
     assert "community" not in tables
 
 
+@pytest.mark.parametrize("seed", range(20))
+def test_ranked_nodes_give_the_competition_ranks_pandas_gives(seed):
+    # Reference: pandas' Series.rank(method="min", ascending=False), the competition ("1224")
+    # ranking, on values with many ties and missing ones; equal values keep node order.
+    import numpy as np
+    import pandas as pd
+
+    from generator.render.network_page import ranked_nodes
+
+    rng = np.random.default_rng(seed)
+    values = rng.integers(0, 6, size=40).astype(float)
+    values[rng.random(40) < 0.2] = np.nan
+    labels = [f"n{i}" for i in range(40)]
+    count = int(rng.integers(1, 12))
+    rows, more = ranked_nodes(values, labels, labels, count)
+    series = pd.Series(values)
+    expected = series.dropna().sort_values(ascending=False, kind="stable")
+    assert [r.label for r in rows] == [labels[i] for i in expected.index[:count]]
+    ranks = series.rank(method="min", ascending=False)
+    assert [r.rank for r in rows] == [int(ranks[i]) for i in expected.index[:count]]
+    cut = expected.iloc[min(count, len(expected)) - 1]
+    assert more == int((expected.iloc[count:] == cut).sum())
+
+
 def _partition(**changes) -> CommunityResult:
     base = CommunityResult("leiden", 1.0, 20, 1, (1, 1, 2, 2), (2, 2), 0.4, 0.4, 1.0, 1.0, 1, 1.0)
     return replace(base, **changes)

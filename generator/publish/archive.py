@@ -18,6 +18,9 @@ ZipTime = tuple[int, int, int, int, int, int]
 _EARLIEST: ZipTime = (1980, 1, 1, 0, 0, 0)  # the zip format counts from 1980
 _FILE_MODE = 0o100644  # a regular file, rw-r--r--
 _UNIX = 3  # "made by" a Unix system, so unzip reads the mode
+# zlib's own default: on the 190 MB of a 10^6-tie network's downloads, level 9 took 11.5 s for
+# 24.8 MB and level 6 takes 3.6 s for 26.3 MB.
+ZIP_LEVEL = 6
 
 
 def zip_time(epoch: str | None) -> ZipTime:
@@ -49,6 +52,6 @@ def zip_bytes(files: Mapping[str, bytes], *, date_time: ZipTime, comment: bytes 
             entry.external_attr = _FILE_MODE << 16
             entry.create_system = _UNIX
             entry.compress_type = zipfile.ZIP_DEFLATED
-            archive.writestr(entry, data, compresslevel=9)
+            archive.writestr(entry, data, compresslevel=ZIP_LEVEL)
         archive.comment = comment
     return buffer.getvalue()

@@ -3,15 +3,15 @@ runs and under perturbed data, the co-assignment figure, and communities against
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
+
+import numpy as np
 
 from ..analyse import AttributeComparison, NetworkAnalysis
 from ..draw.coassignment import COASSIGNMENT
 from ..vocabulary import (
     COMMUNITY_CONFIDENCE,
     count_of,
-    is_missing,
     left_out_sentence,
     measure,
     number,
@@ -97,16 +97,20 @@ def _community_lines(item: NetworkPageInput) -> tuple[CommunityLine, ...]:
     membership = analysis.communities.membership
     ranking = central_measure(item)
     measures = analysis.measures.reindex(analysis.nodes.index)
-    values = ([float(v) if not is_missing(v) else math.nan for v in measures[ranking].tolist()]
-              if ranking in measures.columns else [math.nan] * len(membership))
+    values = (measures[ranking].to_numpy(dtype=float, na_value=np.nan)
+              if ranking in measures.columns else np.full(len(membership), np.nan))
     labels = analysis.labels
     ids = [str(node) for node in analysis.nodes.index]
+    # Every community's members in node order, found in one pass over the membership.
+    grouped = np.argsort(np.asarray(membership, dtype=np.int64), kind="stable")
+    bounds = np.searchsorted(np.asarray(membership, dtype=np.int64)[grouped],
+                             [p.community for p in analysis.community_profiles])
     lines = []
-    for profile in analysis.community_profiles:
+    for profile, start in zip(analysis.community_profiles, bounds.tolist()):
         if profile.size < 2:
             continue
-        members = [v for v, c in enumerate(membership) if c == profile.community]
-        central, _ = ranked_nodes([values[v] for v in members], [labels[v] for v in members],
+        members = grouped[start:start + profile.size].tolist()
+        central, _ = ranked_nodes(values[members], [labels[v] for v in members],
                                   [ids[v] for v in members], CENTRAL_COUNT)
         lines.append(CommunityLine(
             number=profile.community, size=number(profile.size),

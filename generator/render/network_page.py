@@ -2,11 +2,12 @@
 
 from __future__ import annotations
 
-import math
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
+import numpy as np
 import pandas as pd
 
 from ..analyse import CommunityResult, NetworkAnalysis, Statistic
@@ -193,22 +194,26 @@ def network_facts(item: NetworkPageInput) -> NetworkFacts:
     )
 
 
-def ranked_nodes(values: list[float], labels: list[str], ids: list[str], count: int
-            ) -> tuple[tuple[RankedNode, ...], int]:
-    order = sorted((i for i, v in enumerate(values) if not math.isnan(v)),
-                   key=lambda i: (-values[i], i))  # ties keep node order
-    rows = []
-    rank = 0
-    for position, i in enumerate(order[:count], start=1):
-        if position == 1 or values[i] != values[order[position - 2]]:
-            rank = position
-        rows.append(RankedNode(rank, labels[i], number(values[i]),
-                               ids[i] if ids[i] != labels[i] else ""))
+def ranked_nodes(values: Sequence[float] | np.ndarray, labels: Sequence[str],
+                 ids: Sequence[str], count: int) -> tuple[tuple[RankedNode, ...], int]:
+    """The ``count`` highest values (NaN left out) with competition ranks, equal values in node
+    order; and how many nodes beyond them equal the last one shown. Sorted with numpy: a
+    network of 10^5 nodes ranks each measure in milliseconds."""
+    numbers = np.asarray(values, dtype=float)
+    present = np.flatnonzero(~np.isnan(numbers))
+    order = present[np.lexsort((present, -numbers[present]))]  # ties keep node order
+    top = order[:count]
+    shown = numbers[top]
+    changed = np.ones(len(top), dtype=bool)
+    changed[1:] = shown[1:] != shown[:-1]
+    ranks = np.maximum.accumulate(np.where(changed, np.arange(1, len(top) + 1), 0))
+    rows = tuple(RankedNode(int(rank), labels[i], number(float(numbers[i])),
+                            ids[i] if ids[i] != labels[i] else "")
+                 for rank, i in zip(ranks.tolist(), top.tolist()))
     more = 0
     if len(order) > count:
-        last = values[order[count - 1]]
-        more = sum(1 for i in order[count:] if values[i] == last)
-    return tuple(rows), more
+        more = int(np.count_nonzero(numbers[order[count:]] == numbers[order[count - 1]]))
+    return rows, more
 
 
 def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTable, ...]:
@@ -221,7 +226,7 @@ def top_tables(analysis: NetworkAnalysis, count: int = TOP_COUNT) -> tuple[TopTa
     for column in measures.columns:
         if column in (COMMUNITY, COMMUNITY_CONFIDENCE):  # shown per community instead
             continue
-        values = [float(v) if not is_missing(v) else math.nan for v in measures[column].tolist()]
+        values = measures[column].to_numpy(dtype=float, na_value=np.nan)
         rows, more = ranked_nodes(values, labels, ids, count)
         tables.append(TopTable(column, measure_title(column), rows, more))
     return tuple(tables)
