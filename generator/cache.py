@@ -69,7 +69,7 @@ CACHE_TAG = "CACHEDIR.TAG"
 _TAG_TEXT = ("Signature: 8a477f597d28d172789f06886806bc55\n"
              "# This folder holds netfolio's cache of results; netfolio clean removes it.\n")
 # Bumped whenever figures are drawn differently for the same analysis and settings.
-FIGURE_STYLE = 5
+FIGURE_STYLE = 6
 
 
 # ---------------------------------------------------------------------------------------------

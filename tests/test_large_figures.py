@@ -66,6 +66,20 @@ def test_the_map_of_a_large_network_shows_communities_and_a_density_image(large)
     assert "positions in the drawing are not path lengths" in figure.caption.lower()
 
 
+def test_a_map_with_many_ties_draws_them_as_one_raster_layer(tmp_path):
+    # 300 nodes and 2,500 ties: every node is drawn, and the ties become one embedded image
+    # instead of 2,500 paths (and as many arrowheads); a map with fewer ties keeps them vector.
+    from generator.draw.network_map import RASTER_TIES_ABOVE, draw_map
+
+    write_study(tmp_path / "many", RASTER_TIES_ABOVE + 500, nodes=300)
+    many = draw_map(analyse(load_network(tmp_path / "many"), runs=2))
+    assert many.svg.count(b"<image") == 1
+    assert _svg_elements(many.svg) < 300 + 200  # the nodes, labels and keys
+    write_study(tmp_path / "few", 600, nodes=300)
+    few = draw_map(analyse(load_network(tmp_path / "few"), runs=2))
+    assert few.svg.count(b"<image") == 0 and _svg_elements(few.svg) > 600
+
+
 def test_the_community_map_draws_the_pairs_with_most_ties_first(large):
     counted = large.community_ties()
     merged: dict[tuple[int, int], int] = {}

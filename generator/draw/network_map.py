@@ -44,7 +44,11 @@ from .style import (
 )
 from .tie_geometry import arrow_shapes, tie_widths
 
-__all__ = ["draw_map", "label_gid"]
+__all__ = ["RASTER_TIES_ABOVE", "draw_map", "label_gid"]
+
+# Above this many ties the tie layer of the SVG map is one embedded raster image (nodes, labels
+# and keys stay vector shapes): 10,000 tie paths made a 3.6 MB SVG that browsers redraw slowly.
+RASTER_TIES_ABOVE = 2000
 
 # The frame, in inches: the map keeps the layout's proportions inside these bounds, the keys sit
 # in their own column to its right so they never cover a node.
@@ -125,17 +129,19 @@ def _draw_ties(ax: Axes, analysis: NetworkAnalysis, xy: np.ndarray, sizes: NodeS
     if not pairs:
         return
     widths = tie_widths(strengths, weighted=analysis.weighted)
+    raster = len(pairs) > RASTER_TIES_ABOVE
     if not analysis.directed:
         segments = [(tuple(xy[a]), tuple(xy[b])) for a, b in pairs]
         ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=widths, zorder=1,
-                                         capstyle="round"), autolim=False)
+                                         capstyle="round", rasterized=raster), autolim=False)
         return
     segments, heads, drawn = arrow_shapes(xy, pairs, _radii_points(sizes), widths,
                                           frame.points_per_unit)
     ax.add_collection(LineCollection(segments, colors=TIE_GREY, linewidths=drawn or [0.6],
-                                     zorder=1, capstyle="butt"), autolim=False)
-    ax.add_collection(PolyCollection(heads, facecolors="#A8A8A8", edgecolors="none", zorder=1.5),
+                                     zorder=1, capstyle="butt", rasterized=raster),
                       autolim=False)
+    ax.add_collection(PolyCollection(heads, facecolors="#A8A8A8", edgecolors="none", zorder=1.5,
+                                     rasterized=raster), autolim=False)
 
 
 def _draw_nodes(ax: Axes, xy: np.ndarray, colours: NodeColours, sizes: NodeSizes) -> None:
