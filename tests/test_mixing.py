@@ -237,8 +237,9 @@ def test_the_page_says_which_form_each_attribute_used(tmp_path):
 
 @pytest.mark.parametrize("keys, pieces", [
     ({"numeric": ["team"]}, ["data/nodes.csv", "line 2", "column 'team'", "'X'", "not a number"]),
-    ({"categorical": ["unit"]}, ["data/nodes.csv", "line 1", "column 'unit'", "'unit'",
-                                 "not a node attribute", "'team'"]),
+    ({"categorical": ["unit"]}, ["study.toml", "network[1].categorical", "'unit'",
+                                 "not a node attribute of the node list data/nodes.csv",
+                                 "'team'"]),
     ({"categorical": ["team"], "numeric": ["team"]}, ["study.toml", "network[1].numeric",
                                                       "'team'", "both categorical and numeric"]),
 ])
