@@ -5,8 +5,16 @@ column and value."""
 from __future__ import annotations
 
 import json
+import random
 import sys
 from pathlib import Path
+
+import pytest
+from conftest import write_study
+
+from generator.config import load_study
+from generator.errors import DataError
+from generator.ingest.two_mode import read_two_mode
 
 sys.path.insert(0, str(Path(__file__).parent / "fixtures"))
 import two_mode_cases  # noqa: E402
@@ -22,3 +30,108 @@ def test_reading_gives_what_the_tie_by_tie_reader_recorded():
     assert len(now) == len(recorded) == len(two_mode_cases.CASES)
     for i, (before, after) in enumerate(zip(recorded, now)):
         assert after == before, (i, two_mode_cases.CASES[i])
+
+
+# ---------------------------------------------------------------------------------------------
+# One bad row near the end of a large file
+
+ROWS = 200_000
+TIES = "data/ties.csv"
+NODES = "data/nodes.csv"
+
+
+def _large_ties(bad_row: str | None = None, at: int = -1, *, seed: int = 3) -> str:
+    """An author-paper edge list: 20,000 authors, 5,000 papers, weights 1-9."""
+    rng = random.Random(seed)
+    rows = ["author,paper,w"]
+    for i in range(ROWS):
+        row = f"a{rng.randrange(20_000)},p{rng.randrange(5_000)},{rng.randint(1, 9)}"
+        rows.append(bad_row if i == at and bad_row is not None else row)
+    return "\n".join(rows) + "\n"
+
+
+def _large_study(root: Path, ties: str, nodes: str | None = None, **network: object) -> Path:
+    settings = {"id": "ap", "edges": TIES, "source": "author", "target": "paper", "weight": "w",
+                "two_mode": True, "modes": ["author", "paper"], **network}
+    files = {TIES: ties}
+    if nodes is not None:
+        settings["nodes"] = NODES
+        files[NODES] = nodes
+    return write_study(root, networks=[settings], files=files)
+
+
+def _read(root: Path):
+    study = load_study(root)
+    return read_two_mode(study, study.two_mode[0])
+
+
+@pytest.mark.parametrize("bad_row, column, value, message", [
+    ("a1,p2,heavy", "w", "heavy", "weight is not a number"),
+    ("a1,p2,-3", "w", "-3", "weight is negative; netfolio reads weights as tie strengths or "
+                            "distances, which cannot be below 0"),
+    ("a1,p2,", "w", "", "weight is missing"),
+    (",p2,4", "author", "", "a tie has an empty node id"),
+    ("a1, ,4", "paper", "", "a tie has an empty node id"),
+])
+def test_a_bad_row_near_the_end_of_a_large_two_mode_edge_list_is_named(
+        tmp_path, bad_row, column, value, message):
+    at = ROWS - 9  # data row at index ``at`` is line at + 2 (the header is line 1)
+    with pytest.raises(DataError) as caught:
+        _read(_large_study(tmp_path, _large_ties(bad_row, at)))
+    (finding,) = caught.value.findings
+    assert (finding.file, finding.line, finding.column, finding.value, finding.message) == (
+        TIES, at + 2, column, value, message)
+
+
+def _listed(authors: int, papers: int) -> str:
+    rows = ["id,mode"] + [f"a{k},author" for k in range(authors)]
+    rows += [f"p{k},paper" for k in range(papers)]
+    return "\n".join(rows) + "\n"
+
+
+def test_a_wrong_side_id_near_the_end_of_a_large_edge_list_names_its_line(tmp_path):
+    # p7 is listed as a paper (node-list line 20,000 + 7 + 2) but written as an author.
+    at = ROWS - 4
+    root = _large_study(tmp_path, _large_ties("p7,p3,2", at), _listed(20_000, 5_000))
+    with pytest.raises(DataError) as caught:
+        _read(root)
+    (finding,) = caught.value.findings
+    assert (finding.file, finding.line, finding.column, finding.value) == (
+        TIES, at + 2, "author", "p7")
+    assert finding.message == (
+        f"node 'p7' is listed as a paper in {NODES} (line 20009) but appears in the author "
+        "column; in a two-mode network the 'author' column holds author nodes only")
+
+
+@pytest.mark.parametrize("duplicates", ["sum", "mean", "max"])
+def test_a_large_two_mode_edge_list_is_cleaned_as_a_row_by_row_count_says(tmp_path, duplicates):
+    # The expected network is counted here in plain Python, one row at a time; a tie's
+    # repeated weights combine over the weights in ascending order, as the reader documents.
+    text = _large_ties()
+    rows = [line.split(",") for line in text.splitlines()[1:]]
+    weights: dict[tuple[str, str], list[float]] = {}
+    lines: dict[tuple[str, str], list[int]] = {}
+    for number, (author, paper, weight) in enumerate(rows, start=2):
+        weights.setdefault((author, paper), []).append(float(weight))
+        lines.setdefault((author, paper), []).append(number)
+    combine = {"sum": sum, "max": max, "mean": lambda w: sum(w) / len(w)}[duplicates]
+    expected = {pair: combine(sorted(w)) for pair, w in weights.items()}
+    repeated = sorted(n for listed in lines.values() if len(listed) > 1 for n in listed)
+    authors = {a for a, _ in weights}
+    papers = {p for _, p in weights}
+    listed = _listed(21_000, 5_000)  # a20000-a20999 are in no tie
+
+    network = _read(_large_study(tmp_path, text, listed, duplicates=duplicates))
+    got = {(a, p): w for a, p, w in network.edges.itertuples(index=False)}
+    assert got == expected
+    # Ties in node order, each mode's ids in natural order (a2 before a10).
+    assert list(zip(network.edges["first"], network.edges["second"])) == sorted(
+        expected, key=lambda pair: (int(pair[0][1:]), int(pair[1][1:])))
+    merged = next(f for f in network.checks.findings if "repeated tie" in f.message)
+    assert (merged.count, merged.line) == (len(rows) - len(weights), repeated[0])
+    assert merged.message.endswith(", ".join(str(n) for n in repeated[:20]))
+    isolated = next(f for f in network.checks.findings if "with no ties" in f.message)
+    no_ties = 21_000 - len(authors) + 5_000 - len(papers)
+    assert isolated.count == no_ties
+    assert network.nodes["mode"].value_counts().to_dict() == {"author": 21_000, "paper": 5_000}
+    assert network.ids("author")[:3] == ["a0", "a1", "a2"]
