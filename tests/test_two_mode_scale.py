@@ -135,3 +135,37 @@ def test_a_large_two_mode_edge_list_is_cleaned_as_a_row_by_row_count_says(tmp_pa
     assert isolated.count == no_ties
     assert network.nodes["mode"].value_counts().to_dict() == {"author": 21_000, "paper": 5_000}
     assert network.ids("author")[:3] == ["a0", "a1", "a2"]
+
+
+def test_sums_of_runs_are_what_pythons_sum_gives():
+    # Repeated ties' weights were combined by Python's built-in sum over the sorted weights;
+    # the columnar reader adds the runs of all pairs at once and must give the same floats. The
+    # reference is this interpreter's sum (plain left-to-right addition up to Python 3.11,
+    # Neumaier's compensated addition from 3.12). When written, the compensated branch was also
+    # checked against Python 3.12.1's sum on 3,000 such runs, all equal.
+    import math
+
+    import numpy as np
+
+    from generator.ingest.two_mode import _python_sums
+
+    rng = random.Random(8)
+    pieces = [0.1, 0.2, 0.3, 0.7, 1.0, 3.0, 1e-3, 1e16, 7.7, 2.5e-17, 1e308]
+    runs = [[rng.choice(pieces) * rng.choice([1, 3]) for _ in range(rng.randint(1, 40))]
+            for _ in range(2000)] + [[0.1] * 5000]  # one pair listed 5,000 times
+    values = np.array([v for run in runs for v in run])
+    starts = np.cumsum([0] + [len(run) for run in runs][:-1])
+    got = _python_sums(values, starts)
+    assert got.tolist() == [sum(run) for run in runs]
+    plain = _python_sums(values, starts, compensated=False)
+    assert plain.tolist() == [_left_to_right(run) for run in runs]
+    # The way of adding shows in the last digits: exactly rounded sums differ from these.
+    assert sum(p != math.fsum(run) for p, run in zip(plain.tolist(), runs)
+               if max(run) < 1e300) > 100  # (1e308 is there for sums that overflow)
+
+
+def _left_to_right(run: list[float]) -> float:
+    total = 0.0
+    for value in run:
+        total += value
+    return total

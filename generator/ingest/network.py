@@ -270,14 +270,6 @@ def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, 
 # Edge list and matrix
 
 
-@dataclass(frozen=True)
-class _RawTie:
-    source: str
-    target: str
-    weight: float
-    line: int
-
-
 @dataclass(frozen=True, eq=False)
 class _Ties:
     """Ties as read, column by column in file order: ids, weight (1 when unweighted) and the line
@@ -291,18 +283,6 @@ class _Ties:
 
     def __len__(self) -> int:
         return len(self.line)
-
-    def raw(self) -> list[_RawTie]:
-        return [_RawTie(s, t, w, n) for s, t, w, n in zip(
-            self.source.tolist(), self.target.tolist(), self.weight.tolist(), self.line.tolist())]
-
-    @classmethod
-    def of(cls, ties: list[_RawTie], unit: str = "line") -> _Ties:
-        source, target = np.empty(len(ties), dtype=object), np.empty(len(ties), dtype=object)
-        source[:] = [t.source for t in ties]
-        target[:] = [t.target for t in ties]
-        return cls(source, target, np.array([t.weight for t in ties], dtype=np.float64),
-                   np.array([t.line for t in ties], dtype=np.int64), unit)
 
 
 def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: str,

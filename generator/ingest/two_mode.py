@@ -415,7 +415,11 @@ def _renamed_attributes(names: list[str], header: list[str], nodes_name: str,
     return renamed
 
 
-def _python_sums(values: np.ndarray, starts: np.ndarray) -> np.ndarray:
+COMPENSATED_SUM = sys.version_info >= (3, 12)  # Python's sum of floats compensates from 3.12
+
+
+def _python_sums(values: np.ndarray, starts: np.ndarray, *,
+                 compensated: bool = COMPENSATED_SUM) -> np.ndarray:
     """``sum(values[start:end])`` of each run of ``values`` (runs given by where each starts,
     in order), float for float as Python's built-in ``sum`` adds: one value after another from
     0, and from Python 3.12 with Neumaier's compensation (Neumaier 1974, "Rundungsfehleranalyse
@@ -426,20 +430,20 @@ def _python_sums(values: np.ndarray, starts: np.ndarray) -> np.ndarray:
     starts, sizes = starts[by_size], sizes[by_size]
     total = np.zeros(len(starts))
     compensation = np.zeros(len(starts))
-    neumaier = sys.version_info >= (3, 12)
-    for k in range(int(sizes[0]) if len(sizes) else 0):
-        m = int(np.searchsorted(-sizes, -k, side="left"))  # runs of more than k values
-        x = values[starts[:m] + k]
-        if neumaier:
-            before = total[:m].copy()
-            total[:m] = before + x
-            compensation[:m] += np.where(np.abs(before) >= np.abs(x), (before - total[:m]) + x,
-                                         (x - total[:m]) + before)
-        else:
-            total[:m] += x
-    if neumaier:
-        total = np.where((compensation != 0) & np.isfinite(compensation),
-                         total + compensation, total)
+    with np.errstate(over="ignore", invalid="ignore"):  # a sum may overflow, as Python's does
+        for k in range(int(sizes[0]) if len(sizes) else 0):
+            m = int(np.searchsorted(-sizes, -k, side="left"))  # runs of more than k values
+            x = values[starts[:m] + k]
+            if compensated:
+                before = total[:m].copy()
+                total[:m] = before + x
+                compensation[:m] += np.where(np.abs(before) >= np.abs(x),
+                                             (before - total[:m]) + x, (x - total[:m]) + before)
+            else:
+                total[:m] += x
+        if compensated:
+            total = np.where((compensation != 0) & np.isfinite(compensation),
+                             total + compensation, total)
     sums = np.empty(len(starts))
     sums[by_size] = total
     return sums
