@@ -169,3 +169,45 @@ def _left_to_right(run: list[float]) -> float:
     for value in run:
         total += value
     return total
+
+
+def _large_matrix(rows: int, columns: int, bad: tuple[int, int, str] | None = None
+                  ) -> tuple[str, list[tuple[str, str, str]]]:
+    """An incidence matrix of people by events (cells 0, 1 or 2) and its ties row by row."""
+    rng = random.Random(6)
+    lines = [",".join(["id"] + [f"e{j}" for j in range(columns)])]
+    ties = []
+    for i in range(rows):
+        cells = [rng.choice("0000012") for _ in range(columns)]
+        if bad is not None and bad[0] == i:
+            cells[bad[1]] = bad[2]
+        lines.append(",".join([f"p{i}"] + cells))
+        ties += [(f"p{i}", f"e{j}", cell) for j, cell in enumerate(cells) if cell != "0"]
+    return "\n".join(lines) + "\n", ties
+
+
+def test_a_bad_cell_near_the_end_of_a_large_incidence_matrix_is_named(tmp_path):
+    text, _ = _large_matrix(3000, 100, bad=(2990, 57, "yes"))
+    root = write_study(tmp_path, networks=[{"id": "m", "matrix": "data/m.csv", "two_mode": True}],
+                       files={"data/m.csv": text})
+    with pytest.raises(DataError) as caught:
+        _read(root)
+    (finding,) = caught.value.findings
+    assert (finding.file, finding.line, finding.column, finding.value) == (
+        "data/m.csv", 2992, "e57", "yes")
+    assert finding.message == ("an incidence-matrix cell must be a number (0 for no tie, or the "
+                               "tie's weight)")
+
+
+def test_a_large_incidence_matrix_equals_the_edge_list_of_its_ties(tmp_path):
+    text, ties = _large_matrix(3000, 100)
+    matrix = write_study(tmp_path / "m", networks=[{
+        "id": "m", "matrix": "data/m.csv", "two_mode": True}], files={"data/m.csv": text})
+    edges = write_study(tmp_path / "e", networks=[{
+        "id": "m", "edges": "data/e.csv", "weight": "w", "two_mode": True}],
+        files={"data/e.csv": "\n".join(["source,target,w"] + [",".join(t) for t in ties])
+               + "\n"})
+    from_matrix, from_edges = _read(matrix), _read(edges)
+    assert from_matrix.weighted and len(from_matrix.edges) == len(ties)
+    assert from_matrix.edges.equals(from_edges.edges)
+    assert from_matrix.nodes.equals(from_edges.nodes)
