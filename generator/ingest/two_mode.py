@@ -116,7 +116,8 @@ def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
     modes = table.values(MODE_COLUMN) if has_mode else np.full(len(table), "", dtype=object)
     second = modes == net.modes[1]
     bad_mode = ~(second | (modes == net.modes[0])) & has_mode
-    # A row with an unknown mode is refused as that and nothing else, as is a row with no id.
+    # A row with an unknown mode is refused for that alone; neither it nor a row with no id is
+    # the first of a repeated id.
     empty = (ids == "") & ~bad_mode
     named = ~(bad_mode | empty)
     codes = pd.factorize(ids)[0].astype(np.int64) * 2 + second
