@@ -270,14 +270,6 @@ def _declared_types(attrs: pd.DataFrame, raw: pd.DataFrame, net: NetworkConfig, 
 # Edge list and matrix
 
 
-@dataclass(frozen=True)
-class _RawTie:
-    source: str
-    target: str
-    weight: float
-    line: int
-
-
 @dataclass(frozen=True, eq=False)
 class _Ties:
     """Ties as read, column by column in file order: ids, weight (1 when unweighted) and the line
@@ -291,18 +283,6 @@ class _Ties:
 
     def __len__(self) -> int:
         return len(self.line)
-
-    def raw(self) -> list[_RawTie]:
-        return [_RawTie(s, t, w, n) for s, t, w, n in zip(
-            self.source.tolist(), self.target.tolist(), self.weight.tolist(), self.line.tolist())]
-
-    @classmethod
-    def of(cls, ties: list[_RawTie], unit: str = "line") -> _Ties:
-        source, target = np.empty(len(ties), dtype=object), np.empty(len(ties), dtype=object)
-        source[:] = [t.source for t in ties]
-        target[:] = [t.target for t in ties]
-        return cls(source, target, np.array([t.weight for t in ties], dtype=np.float64),
-                   np.array([t.line for t in ties], dtype=np.int64), unit)
 
 
 def _check_weight(text: str, net: NetworkConfig, name: str, line: int, column: str,
@@ -550,6 +530,34 @@ def _mirrored_listing(kept: np.ndarray, a: np.ndarray, b: np.ndarray, ties: _Tie
     return kept
 
 
+def sorted_pairs(pair: np.ndarray, weight: np.ndarray
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The order that puts ties (given in file order) by pair, and within a pair listed more
+    than once by weight, so that combining repeated ties does not depend on the order of rows
+    in the file; both sorts are stable, so equal ties stay in file order. ``pair`` codes each
+    tie's pair as an integer that sorts as the pairs should. Returns the order, and for each
+    tie in that order whether it is its pair's first (``first``) and whether its pair is listed
+    more than once (``repeat``)."""
+    ordered = np.argsort(pair, kind="stable")
+    same = pair[ordered][1:] == pair[ordered][:-1]  # a tie and the next are one pair
+    repeat = np.zeros(len(pair), dtype=bool)
+    repeat[1:] |= same
+    repeat[:-1] |= same
+    if repeat.any():  # only pairs listed more than once need the second sort
+        group = ordered[repeat]
+        ordered[repeat] = group[np.lexsort((weight[group], pair[group]))]
+    first = np.ones(len(pair), dtype=bool)
+    first[1:] = ~same
+    return ordered, first, repeat
+
+
+def first_places(codes: np.ndarray) -> np.ndarray:
+    """Where each code first appears, for codes numbered in order of first appearance (as
+    ``pd.factorize`` numbers them): a code's first place is where the running maximum of the
+    codes reaches it."""
+    return np.flatnonzero(np.diff(np.maximum.accumulate(codes), prepend=-1) > 0)
+
+
 def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkConfig, name: str,
                 order: list[str], weighted: bool, checks: DataChecks
                 ) -> tuple[pd.DataFrame, np.ndarray]:
@@ -570,19 +578,9 @@ def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkC
     a, b = a_all[kept], b_all[kept]
     if not net.directed:
         a, b = np.minimum(a, b), np.maximum(a, b)
-    # Sort before combining so sums do not depend on the order of rows in the file: by pair,
-    # weight and line. The ties are in file order and both sorts are stable; only pairs listed
-    # more than once need the second.
     weight, line = ties.weight[kept], ties.line[kept]
     pair = a.astype(np.int64) * max(len(order), 1) + b
-    ordered = np.argsort(pair, kind="stable")
-    same = pair[ordered][1:] == pair[ordered][:-1]  # a row and the next are one pair
-    repeat = np.zeros(len(pair), dtype=bool)
-    repeat[1:] |= same
-    repeat[:-1] |= same
-    if repeat.any():
-        group = ordered[repeat]
-        ordered[repeat] = group[np.lexsort((weight[group], pair[group]))]
+    ordered, first, repeat = sorted_pairs(pair, weight)
     frame = pd.DataFrame({"a": a[ordered], "b": b[ordered], "weight": weight[ordered],
                           "line": line[ordered]}, index=ordered)
     repeated = frame[repeat]
@@ -595,8 +593,6 @@ def _clean_ties(ties: _Ties, a_all: np.ndarray, b_all: np.ndarray, net: NetworkC
                            f"{_lines(lines)}", line=lines[0], count=extra, unit=unit))
     # One row per pair: its first row, with the combined weight where the pair is repeated (a
     # pair listed once keeps its weight, which is its sum, mean and max).
-    first = np.ones(len(pair), dtype=bool)
-    first[1:] = ~same
     merged = frame.loc[first, ["a", "b", "weight"]].reset_index(drop=True)
     if len(repeated):
         if weighted and net.duplicates == "sum" and net.weight_means == "distance":
@@ -751,10 +747,8 @@ def read_network(study: StudyConfig, net: NetworkConfig) -> CleanNetwork:
 
     known = node_frame.index if node_frame is not None else pd.Index([], dtype=object)
     if node_frame is not None:
-        # Each node missing from the node list, with the line of the tie naming it first. Codes
-        # are given in order of first appearance, so a code's first place is where the running
-        # maximum of the codes reaches it.
-        first_place = np.flatnonzero(np.diff(np.maximum.accumulate(codes), prepend=-1) > 0)
+        # Each node missing from the node list, with the line of the tie naming it first.
+        first_place = first_places(codes)
         missing = np.flatnonzero(known.get_indexer(pd.Index(named, dtype=object)) == -1)
         unknown = dict(zip(named[missing].tolist(),
                            ties.line[first_place[missing] // 2].tolist()))

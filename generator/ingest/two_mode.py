@@ -6,25 +6,28 @@ Nodes are keyed by (mode, id): the same text may name a node of each mode withou
 
 from __future__ import annotations
 
-import math
+import sys
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from ..config import EdgeListSource, MatrixSource, NetworkConfig, StudyConfig
 from ..errors import DataError, Finding
 from ..vocabulary import count_of
-from .csvfile import read_table
+from .csvfile import Table, read_table
 from .network import (
     MAX_LINES_LISTED,
     RESERVED_COLUMNS,
     DataChecks,
-    _number,
-    _RawTie,
+    _numbers,
     _read_edge_list,
+    _Ties,
     _typed_attributes,
-    natural_key,
+    first_places,
+    natural_order,
+    sorted_pairs,
 )
 
 __all__ = ["MODE_COLUMN", "TwoModeNetwork", "projection_findings", "read_two_mode",
@@ -81,10 +84,26 @@ def typed_mode_attributes(network: TwoModeNetwork, mode: str | None) -> pd.DataF
     return _typed_attributes(frame, network.config.decimal)
 
 
+def _text(values: list[str] | np.ndarray) -> np.ndarray:
+    """An object array of str (empty when there are none)."""
+    array = np.empty(len(values), dtype=object)
+    array[:] = list(values)
+    return array
+
+
+def _first_lines(keys: np.ndarray, lines: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """For rows keyed by ``keys`` (integers), whether each row repeats an earlier row's key, and
+    the line of the first row with each row's key."""
+    first, inverse = np.unique(keys, return_index=True, return_inverse=True)[1:]
+    repeated = np.ones(len(keys), dtype=bool)
+    repeated[first] = False
+    return repeated, lines[first][inverse.reshape(-1)]
+
+
 def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
-                ) -> tuple[list[str], list[tuple[str | None, str, int, tuple[str, ...]]], bool, str]:
-    """The node list's header, its rows as (mode or None, id, line, row), whether it has a mode
-    column, and whether it counts lines or (Parquet) rows."""
+                ) -> tuple[Table, bool]:
+    """The node list, each row naming one node, and whether it has a mode column. Refuses
+    unknown modes, empty ids and ids repeated (within a mode, when there is a mode column)."""
     table = read_table(path, name, delimiter=net.delimiter, decimal=net.decimal)
     checks.findings += table.findings
     table.require(net.node_id, what="node list")
@@ -93,45 +112,47 @@ def _read_nodes(net: NetworkConfig, path: Path, name: str, checks: DataChecks
     has_mode = MODE_COLUMN in table.header and MODE_COLUMN != net.node_id
     table.refuse_control_characters(net.node_id, net.label, MODE_COLUMN if has_mode else None)
     checks.findings += table.trimmed_findings(net.node_id)
-    id_col = table.column(net.node_id)
-    mode_col = table.column(MODE_COLUMN) if has_mode else None
-    rows = []
-    unit = table.unit
-    first_line: dict[tuple[str | None, str], int] = {}
-    for row, line in zip(table.rows, table.lines.tolist()):
-        node = row[id_col]
-        mode = row[mode_col] if mode_col is not None else None
-        if mode is not None and mode not in net.modes:
-            checks.add(Finding("error", name, f"mode must be {net.modes[0]!r} or {net.modes[1]!r} "
-                               "(the modes study.toml names)", line=line, column=MODE_COLUMN,
-                               value=mode, unit=unit))
-            continue
-        if node == "":
+    ids, unit = table.values(net.node_id), table.unit
+    modes = table.values(MODE_COLUMN) if has_mode else np.full(len(table), "", dtype=object)
+    second = modes == net.modes[1]
+    bad_mode = ~(second | (modes == net.modes[0])) & has_mode
+    # A row with an unknown mode is refused for that alone; neither it nor a row with no id is
+    # the first of a repeated id.
+    empty = (ids == "") & ~bad_mode
+    named = ~(bad_mode | empty)
+    codes = pd.factorize(ids)[0].astype(np.int64) * 2 + second
+    repeated = np.zeros(len(table), dtype=bool)
+    first_line = np.zeros(len(table), dtype=np.int64)
+    repeated[named], first_line[named] = _first_lines(codes[named], table.lines[named])
+    for i in np.flatnonzero(bad_mode | empty | repeated).tolist():  # the offending rows, in order
+        line = int(table.lines[i])
+        if bad_mode[i]:
+            checks.add(Finding("error", name, f"mode must be {net.modes[0]!r} or "
+                               f"{net.modes[1]!r} (the modes study.toml names)", line=line,
+                               column=MODE_COLUMN, value=str(modes[i]), unit=unit))
+        elif empty[i]:
             checks.add(Finding("error", name, "a node has an empty id", line=line,
                                column=net.node_id, unit=unit))
-        elif (mode, node) in first_line:
-            where = f" as {_a(mode)}" if mode else ""
-            checks.add(Finding("error", name, f"node id is repeated{where} (first on {unit} "
-                               f"{first_line[(mode, node)]})", line=line, column=net.node_id,
-                               value=node, unit=unit))
         else:
-            first_line[(mode, node)] = line
-            rows.append((mode, node, line, row))
+            where = f" as {_a(str(modes[i]))}" if has_mode else ""
+            checks.add(Finding("error", name, f"node id is repeated{where} (first on {unit} "
+                               f"{int(first_line[i])})", line=line, column=net.node_id,
+                               value=str(ids[i]), unit=unit))
     checks.raise_if_errors()
-    return list(table.header), rows, has_mode, unit
+    return table, has_mode
 
 
 def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks: DataChecks
-                    ) -> tuple[list[_RawTie], list[tuple[str, int]], list[str], bool]:
+                    ) -> tuple[_Ties, np.ndarray, np.ndarray, bool]:
     """Rows are first-mode nodes, columns second-mode nodes; a cell is 0 (no tie) or the tie's
-    weight. Returns the ties, the row ids with their lines, the column ids and whether any
-    weight is other than 1."""
+    weight. Returns the ties (row by row, as the file reads), the row ids, the column ids and
+    whether any weight is other than 1."""
     table = read_table(matrix.path, name, delimiter=net.delimiter, row_labels=True)
     checks.findings += table.findings
     table.refuse_control_characters(*table.header)
     columns = list(table.header[1:])
     first_column = table.header[0] or "first column"
-    seen: dict[str, int] = {}
+    seen: set[str] = set()
     for column in columns:
         if column == "":
             raise DataError(Finding("error", name, "a column of the incidence matrix has no id in "
@@ -139,67 +160,116 @@ def _read_incidence(net: NetworkConfig, matrix: MatrixSource, name: str, checks:
         if column in seen:
             raise DataError(Finding("error", name, "column id is repeated in the header row",
                                     line=1, column=column, value=column))
-        seen[column] = 1
-    rows: list[tuple[str, int]] = []
-    row_line: dict[str, int] = {}
-    ties: list[_RawTie] = []
-    for row, line in zip(table.rows, table.lines.tolist()):
-        label = row[0]
-        if label == "":
+        seen.add(column)
+    labels, lines = table.columns[0], table.lines
+    no_id = labels == ""
+    repeated = np.zeros(len(table), dtype=bool)
+    first_line = np.zeros(len(table), dtype=np.int64)
+    codes = pd.factorize(labels)[0].astype(np.int64)
+    repeated[~no_id], first_line[~no_id] = _first_lines(codes[~no_id], lines[~no_id])
+    good = ~(no_id | repeated)  # rows whose cells are read
+    width = len(columns)
+    cells = np.empty((len(table), width), dtype=object)  # rows in file order
+    for j, values in enumerate(table.columns[1:]):
+        cells[:, j] = values
+    flat = cells.ravel()
+    valid, numbers = _numbers(flat, net.decimal)
+    read = ~(flat == "") & np.repeat(good, width)  # an empty cell is no tie
+    with np.errstate(invalid="ignore"):
+        not_number = read & (~valid | np.isnan(numbers))
+        negative = read & ~not_number & (np.isinf(numbers) | (numbers < 0))
+        tie = read & ~not_number & ~negative & (numbers != 0)
+    # Errors in file order: a row's missing or repeated id, else its cells left to right; as
+    # place i * (width + 1) + j, j = 0 for the id and 1 + the column's index for a cell.
+    bad_row, bad_cell = np.divmod(np.flatnonzero(not_number | negative), max(width, 1))
+    refused = np.concatenate([np.flatnonzero(~good) * (width + 1),
+                              bad_row * (width + 1) + bad_cell + 1])
+    for place in np.sort(refused).tolist():
+        i, j = divmod(place, width + 1)
+        line = int(lines[i])
+        if j == 0 and no_id[i]:
             checks.add(Finding("error", name, "a row has no id in the first column", line=line,
                                column=first_column))
-            continue
-        if label in row_line:
+        elif j == 0:
             checks.add(Finding("error", name, f"row id is repeated (first on line "
-                               f"{row_line[label]})", line=line, column=first_column, value=label))
-            continue
-        row_line[label] = line
-        rows.append((label, line))
-        for column, cell in zip(columns, row[1:]):
-            if cell == "":
-                continue  # an empty cell is no tie
-            value = _number(cell, net.decimal)
-            if value is None or math.isnan(value):
-                checks.add(Finding("error", name, "an incidence-matrix cell must be a number "
-                                   "(0 for no tie, or the tie's weight)", line=line,
-                                   column=column, value=cell))
-            elif math.isinf(value) or value < 0:
-                checks.add(Finding("error", name, "an incidence-matrix cell must be 0 or a "
-                                   "positive number", line=line, column=column, value=cell))
-            elif value != 0:
-                ties.append(_RawTie(label, column, value, line))
-    checks.raise_if_errors()
-    weighted = any(t.weight != 1.0 for t in ties)
-    return ties, rows, columns, weighted
-
-
-def _refuse_wrong_side(ties: list[_RawTie], declared: dict[NodeKey, int], net: NetworkConfig,
-                       data_name: str, nodes_name: str, columns: tuple[str, str],
-                       checks: DataChecks, units: tuple[str, str] = ("line", "line")) -> None:
-    """With a ``mode`` column in the node list, an id listed only as one mode may not appear in
-    the other mode's column."""
-    first, second = net.modes
-    node_unit, tie_unit = units
-    reported: set[NodeKey] = set()
-    for tie in ties:
-        for mode, other, node, column in ((first, second, tie.source, columns[0]),
-                                          (second, first, tie.target, columns[1])):
-            if (mode, node) in declared or (other, node) not in declared:
-                continue
-            if (mode, node) in reported:
-                continue
-            reported.add((mode, node))
-            in_header = column == "header row"  # an incidence matrix's column id
+                               f"{int(first_line[i])})", line=line, column=first_column,
+                               value=str(labels[i])))
+        else:
+            k = i * width + j - 1
             checks.add(Finding(
-                "error", data_name, f"node {node!r} is listed as {_a(other)} in {nodes_name} "
-                f"({node_unit} {declared[(other, node)]}) but appears in the {mode} column; in a "
-                f"two-mode network the {column!r} column holds {mode} nodes only"
-                if not in_header else
-                f"node {node!r} is listed as {_a(other)} in {nodes_name} ({node_unit} "
-                f"{declared[(other, node)]}) but names a column of the incidence matrix, whose "
-                f"columns are {mode} nodes", line=1 if in_header else tie.line,
-                column=node if in_header else column, value=node,
-                unit="line" if in_header else tie_unit))
+                "error", name, "an incidence-matrix cell must be a number (0 for no tie, or the "
+                "tie's weight)" if not_number[k] else "an incidence-matrix cell must be 0 or a "
+                "positive number", line=line, column=columns[j - 1], value=str(flat[k])))
+    checks.raise_if_errors()
+    rows, cols = np.divmod(np.flatnonzero(tie), max(width, 1))
+    ties = _Ties(labels[rows], _text(columns)[cols], numbers[tie].astype(np.float64),
+                 lines[rows].astype(np.int64))
+    weighted = bool((ties.weight != 1.0).any())
+    return ties, labels[good], _text(columns), weighted
+
+
+@dataclass(frozen=True, eq=False)
+class _Side:
+    """One mode's nodes in natural id order, and each tie's place among them."""
+
+    mode: str
+    ids: list[str]
+    index: pd.Index  # of ids
+    place: np.ndarray  # int64, per tie: the place of its node of this mode
+
+    def __len__(self) -> int:
+        return len(self.ids)
+
+
+def _side(mode: str, ends: np.ndarray, more: list[np.ndarray]) -> tuple[_Side, np.ndarray,
+                                                                        np.ndarray]:
+    """The nodes of one mode: those at this end of the ties and those in ``more``. Also returns
+    the distinct ids at this end, in order of first appearance, and each tie's code into them."""
+    codes, distinct = pd.factorize(ends)
+    distinct = _text(distinct)
+    ids = natural_order(pd.unique(np.concatenate([distinct, *more])).tolist())
+    index = pd.Index(ids, dtype=object)
+    place = index.get_indexer(pd.Index(distinct, dtype=object))[codes].astype(np.int64)
+    return _Side(mode, ids, index, place), distinct, codes
+
+
+def _refuse_wrong_side(ties: _Ties, table: Table, net: NetworkConfig, data_name: str,
+                       nodes_name: str, columns: tuple[str, str], ends: list[tuple[np.ndarray,
+                                                                                   np.ndarray]],
+                       checks: DataChecks) -> None:
+    """With a ``mode`` column in the node list, an id listed only as one mode may not appear in
+    the other mode's column. ``ends`` holds, for the source and the target ends of the ties, the
+    distinct ids (in order of first appearance) and each tie's code into them."""
+    first, second = net.modes
+    node_unit, tie_unit = table.unit, ties.unit
+    ids, modes = table.values(net.node_id), table.values(MODE_COLUMN)
+    listed = {m: pd.Index(ids[modes == m], dtype=object) for m in (first, second)}
+    listed_line = {m: table.lines[modes == m] for m in (first, second)}
+    found: list[tuple[int, int, str, str, str, int]] = []  # (place, end, mode, other, id, line)
+    for end, (mode, other) in enumerate(((first, second), (second, first))):
+        distinct, codes = ends[end]
+        as_other = listed[other].get_indexer(pd.Index(distinct, dtype=object))
+        wrong = np.flatnonzero((as_other >= 0) & (listed[mode].get_indexer(
+            pd.Index(distinct, dtype=object)) < 0))
+        if not len(wrong):
+            continue
+        places = first_places(codes)[wrong]  # the first tie naming each
+        found += [(place, end, mode, other, str(distinct[k]), int(listed_line[other][at]))
+                  for place, k, at in zip(places.tolist(), wrong.tolist(),
+                                          as_other[wrong].tolist())]
+    for place, end, mode, other, node, declared in sorted(found):
+        column = columns[end]
+        in_header = column == "header row"  # an incidence matrix's column id
+        checks.add(Finding(
+            "error", data_name, f"node {node!r} is listed as {_a(other)} in {nodes_name} "
+            f"({node_unit} {declared}) but appears in the {mode} column; in a "
+            f"two-mode network the {column!r} column holds {mode} nodes only"
+            if not in_header else
+            f"node {node!r} is listed as {_a(other)} in {nodes_name} ({node_unit} "
+            f"{declared}) but names a column of the incidence matrix, whose "
+            f"columns are {mode} nodes", line=1 if in_header else int(ties.line[place]),
+            column=node if in_header else column, value=node,
+            unit="line" if in_header else tie_unit))
 
 
 def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
@@ -208,70 +278,73 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
     first, second = net.modes
     data_name = study.relative(net.data_file)
     nodes_name = study.relative(net.nodes) if net.nodes is not None else data_name
-    header: list[str] = []
-    node_rows: list[tuple[str | None, str, int, tuple[str, ...]]] = []
+    table: Table | None = None
     has_mode = False
-    node_unit = tie_unit = "line"
     if net.nodes is not None:
-        header, node_rows, has_mode, node_unit = _read_nodes(net, net.nodes, nodes_name, checks)
-    matrix_rows: list[tuple[str, int]] = []
-    matrix_columns: list[str] = []
+        table, has_mode = _read_nodes(net, net.nodes, nodes_name, checks)
+    row_ids = column_ids = _text([])
     if isinstance(net.data, EdgeListSource):
-        read = _read_edge_list(net, net.data, data_name, checks)
-        ties, tie_unit = read.raw(), read.unit
+        ties = _read_edge_list(net, net.data, data_name, checks)
         weighted = net.data.weight is not None
         columns = (net.data.source, net.data.target)
     else:
-        ties, matrix_rows, matrix_columns, weighted = _read_incidence(net, net.data, data_name,
-                                                                      checks)
+        ties, row_ids, column_ids, weighted = _read_incidence(net, net.data, data_name, checks)
         columns = ("first column", "header row")
     checks.raise_if_errors()
-    if not ties and not node_rows and not matrix_rows:
+    if not len(ties) and (table is None or not len(table)) and not len(row_ids):
         raise DataError(Finding("error", data_name, "holds no ties and there is no node list, so "
                                 "the network would be empty"))
+    node_ids = table.values(net.node_id) if table is not None else _text([])
+    node_modes = table.values(MODE_COLUMN) if table is not None and has_mode else None
 
-    declared: dict[NodeKey, int] = {}
-    if has_mode:
-        declared = {(str(mode), node): line for mode, node, line, _ in node_rows}
-        _refuse_wrong_side(ties, declared, net, data_name, nodes_name, columns, checks,
-                           (node_unit, tie_unit))
+    # Each mode's nodes: those in ties (and matrix rows or columns with none), and those the
+    # node list gives that mode.
+    sides = []
+    ends = []
+    for mode, values, more in ((first, ties.source, row_ids), (second, ties.target, column_ids)):
+        declared = [node_ids[node_modes == mode]] if node_modes is not None else []
+        side, distinct, codes = _side(mode, values, [more, *declared])
+        sides.append(side)
+        ends.append((distinct, codes))
+    if table is not None and has_mode:
+        _refuse_wrong_side(ties, table, net, data_name, nodes_name, columns, ends, checks)
         checks.raise_if_errors()
 
-    in_ties = {first: {t.source for t in ties} | {r for r, _ in matrix_rows},
-               second: {t.target for t in ties} | set(matrix_columns)}
-    keys: set[NodeKey] = {(m, n) for m in (first, second) for n in in_ties[m]}
-    attribute_rows: dict[NodeKey, tuple[str, ...]] = {}
-    unplaced: list[tuple[str, int]] = []
-    for mode, node, line, row in node_rows:
-        if mode is not None:
-            keys.add((mode, node))
-            attribute_rows[(mode, node)] = row
-            continue
-        placed = [m for m in (first, second) if node in in_ties[m]]
-        for m in placed:
-            attribute_rows[(m, node)] = row
-        if not placed:
-            unplaced.append((node, line))
-    if unplaced:
-        shown = ", ".join(f"{n!r} ({node_unit} {line})"
-                          for n, line in unplaced[:MAX_LINES_LISTED])
-        checks.add(Finding(
-            "warning", nodes_name, f"{count_of(len(unplaced), 'listed node')} appear in no tie, "
-            f"and the node list has no {MODE_COLUMN!r} column to say whether each is a {first} "
-            f"or a {second}; left out: {shown}. Add a {MODE_COLUMN!r} column to keep them",
-            line=unplaced[0][1], value=unplaced[0][0], count=len(unplaced), unit=node_unit))
-    if net.nodes is not None:
-        unknown = sorted((k for k in keys if k not in attribute_rows),
-                         key=lambda k: (k[0] != first, natural_key(k[1])))
-        if unknown:
-            shown = ", ".join(f"{n!r} ({m})" for m, n in unknown[:MAX_LINES_LISTED])
-            checks.add(Finding("fix", data_name, f"{count_of(len(unknown), 'node')} appear in "
+    # The node-list row of each node (-1: none). Without a mode column, a listed id takes the
+    # mode of the ties it is in (both, if it is in ties of each), or is left out.
+    row_of = [np.full(len(side), -1, dtype=np.int64) for side in sides]
+    node_unit = table.unit if table is not None else "line"
+    if table is not None:
+        at = [side.index.get_indexer(pd.Index(node_ids, dtype=object)) for side in sides]
+        for k, side in enumerate(sides):
+            rows = np.flatnonzero(at[k] >= 0 if node_modes is None else
+                                  (node_modes == side.mode) & (at[k] >= 0))
+            row_of[k][at[k][rows]] = rows
+        if node_modes is None:
+            unplaced = np.flatnonzero((at[0] < 0) & (at[1] < 0))
+            if len(unplaced):
+                shown = ", ".join(f"{n!r} ({node_unit} {line})" for n, line in zip(
+                    node_ids[unplaced[:MAX_LINES_LISTED]].tolist(),
+                    table.lines[unplaced[:MAX_LINES_LISTED]].tolist()))
+                checks.add(Finding(
+                    "warning", nodes_name, f"{count_of(len(unplaced), 'listed node')} appear in "
+                    f"no tie, and the node list has no {MODE_COLUMN!r} column to say whether each "
+                    f"is a {first} or a {second}; left out: {shown}. Add a {MODE_COLUMN!r} column "
+                    "to keep them", line=int(table.lines[unplaced[0]]),
+                    value=str(node_ids[unplaced[0]]), count=len(unplaced), unit=node_unit))
+        unknown = [(side.mode, np.flatnonzero(rows < 0)) for side, rows in zip(sides, row_of)]
+        total = sum(len(places) for _, places in unknown)
+        if total:
+            named = [(mode, sides[k].ids[i]) for k, (mode, places) in enumerate(unknown)
+                     for i in places[:MAX_LINES_LISTED].tolist()][:MAX_LINES_LISTED]
+            shown = ", ".join(f"{n!r} ({m})" for m, n in named)
+            checks.add(Finding("fix", data_name, f"{count_of(total, 'node')} appear in "
                                f"ties but not in the node list {nodes_name}; added with no "
-                               f"attributes: {shown}", value=unknown[0][1], count=len(unknown)))
+                               f"attributes: {shown}", value=named[0][1], count=total))
 
-    ordered = sorted(keys, key=lambda k: (k[0] != first, natural_key(k[1])))
-    for mode, other in ((first, second), (second, first)):
-        if not any(k[0] == mode for k in ordered):
+    for side, other in ((sides[0], second), (sides[1], first)):
+        if not len(side):
+            mode = side.mode
             where = ("the target column" if isinstance(net.data, EdgeListSource) else
                      "the header row") + (" or the node list" if net.nodes is not None else "")
             raise DataError(Finding(
@@ -279,32 +352,51 @@ def read_two_mode(study: StudyConfig, net: NetworkConfig) -> TwoModeNetwork:
                 f"network has one mode only and its projection onto {mode} would be empty; "
                 f"give at least one {mode} node, or read the {other} nodes as a one-mode "
                 "network without two_mode", line=1))
+    header = list(table.header) if table is not None else []
     label_column = net.label
     if label_column is None and "label" in header:
         label_column = "label"
     skip = {net.node_id, MODE_COLUMN if has_mode else None, label_column}
     attribute_names = [c for c in header if c not in skip]
     renamed = _renamed_attributes(attribute_names, header, nodes_name, checks)
-    records = []
-    for key in ordered:
-        found = attribute_rows.get(key)
-        values = {new: (found[header.index(old)] if found is not None else "")
-                  for old, new in zip(attribute_names, renamed)}
-        label = ""
-        if found is not None and label_column is not None:
-            label = found[header.index(label_column)].strip()
-        records.append({"mode": key[0], "id": key[1], "label": label or key[1], **values})
-    nodes = pd.DataFrame(records, columns=["mode", "id", "label", *renamed]).astype("string")
+    nodes = _node_frame(sides, np.concatenate(row_of), table, label_column,
+                        dict(zip(renamed, attribute_names)))
 
-    edges = _combine(ties, net, data_name, weighted, checks, tie_unit)
-    touched = ({(first, s) for s in edges["first"]} | {(second, t) for t in edges["second"]})
-    isolates = [k for k in ordered if k not in touched]
-    if isolates:
+    edges, touched = _combine(ties, sides, net, data_name, weighted, checks)
+    isolates = [(side.mode, side.ids[i]) for side, hit in zip(sides, touched)
+                for i in np.flatnonzero(~hit)[:MAX_LINES_LISTED].tolist()]
+    count = int(sum((~hit).sum() for hit in touched))
+    if count:
         shown = ", ".join(f"{n} ({m})" for m, n in isolates[:MAX_LINES_LISTED])
-        checks.add(Finding("note", data_name, f"{count_of(len(isolates), 'node')} with no ties, "
-                           f"kept in the network: {shown}", count=len(isolates)))
+        checks.add(Finding("note", data_name, f"{count_of(count, 'node')} with no ties, "
+                           f"kept in the network: {shown}", count=count))
     files = tuple(p for p in (net.data_file, net.nodes) if p is not None)
     return TwoModeNetwork(net, nodes, edges, weighted, tuple(renamed), checks, files)
+
+
+def _node_frame(sides: list[_Side], row_of: np.ndarray, table: Table | None,
+                label_column: str | None, attributes: dict[str, str]) -> pd.DataFrame:
+    """One row per node, first-mode nodes then second-mode nodes: mode, id, label (the label
+    column's text, or the id where it is empty or there is none) and each attribute's text
+    ("" where the node has no node-list row). ``row_of`` is each node's row in ``table``, or
+    -1."""
+    ids = _text([node for side in sides for node in side.ids])
+    modes = np.repeat(_text([side.mode for side in sides]), [len(side) for side in sides])
+
+    def cells(column: str) -> np.ndarray:
+        assert table is not None
+        values = np.append(table.values(column), "")  # the last: for nodes with no row
+        return values[np.where(row_of >= 0, row_of, len(values) - 1)]
+
+    labels = ids
+    if table is not None and label_column is not None:
+        written = pd.Series(cells(label_column), dtype=object).str.strip().to_numpy(dtype=object)
+        labels = np.where(written == "", ids, written)
+    frame = pd.DataFrame({"mode": modes, "id": ids, "label": labels,
+                          **{new: cells(old) for new, old in attributes.items()}},
+                         columns=["mode", "id", "label", *attributes])
+    typed: pd.DataFrame = frame.astype("string")
+    return typed
 
 
 def _renamed_attributes(names: list[str], header: list[str], nodes_name: str,
@@ -324,34 +416,78 @@ def _renamed_attributes(names: list[str], header: list[str], nodes_name: str,
     return renamed
 
 
-def _combine(ties: list[_RawTie], net: NetworkConfig, name: str, weighted: bool,
-             checks: DataChecks, unit: str = "line") -> pd.DataFrame:
-    """One row per (first, second) pair, repeated ties combined by ``duplicates``."""
-    groups: dict[tuple[str, str], list[_RawTie]] = {}
-    for tie in ties:
-        groups.setdefault((tie.source, tie.target), []).append(tie)
-    repeated = [g for g in groups.values() if len(g) > 1]
-    if repeated:
-        extra = sum(len(g) - 1 for g in repeated)
-        lines = sorted(t.line for g in repeated for t in g)
+COMPENSATED_SUM = sys.version_info >= (3, 12)  # Python's sum of floats compensates from 3.12
+
+
+def _python_sums(values: np.ndarray, starts: np.ndarray, *,
+                 compensated: bool = COMPENSATED_SUM) -> np.ndarray:
+    """``sum(values[start:end])`` of each run of ``values`` (runs given by where each starts,
+    in order), float for float as Python's built-in ``sum`` adds: one value after another from
+    0, and from Python 3.12 with Neumaier's compensation (Neumaier 1974, "Rundungsfehleranalyse
+    einiger Verfahren zur Summation endlicher Summen"). The k-th values of all runs are added
+    at once, so this takes as many steps as the longest run has values."""
+    sizes = np.diff(np.append(starts, len(values)))
+    by_size = np.argsort(-sizes, kind="stable")  # the runs still adding form a prefix
+    starts, sizes = starts[by_size], sizes[by_size]
+    total = np.zeros(len(starts))
+    compensation = np.zeros(len(starts))
+    with np.errstate(over="ignore", invalid="ignore"):  # a sum may overflow, as Python's does
+        for k in range(int(sizes[0]) if len(sizes) else 0):
+            m = int(np.searchsorted(-sizes, -k, side="left"))  # runs of more than k values
+            x = values[starts[:m] + k]
+            if compensated:
+                before = total[:m].copy()
+                total[:m] = before + x
+                compensation[:m] += np.where(np.abs(before) >= np.abs(x),
+                                             (before - total[:m]) + x, (x - total[:m]) + before)
+            else:
+                total[:m] += x
+        if compensated:
+            total = np.where((compensation != 0) & np.isfinite(compensation),
+                             total + compensation, total)
+    sums = np.empty(len(starts))
+    sums[by_size] = total
+    return sums
+
+
+def _combine(ties: _Ties, sides: list[_Side], net: NetworkConfig, name: str, weighted: bool,
+             checks: DataChecks) -> tuple[pd.DataFrame, list[np.ndarray]]:
+    """One row per (first, second) pair in node order, repeated ties combined by
+    ``duplicates`` over their weights in ascending order; and for each mode's nodes whether a
+    tie touches them."""
+    unit = ties.unit
+    a, b = sides[0].place, sides[1].place
+    pair = a * max(len(sides[1]), 1) + b  # sorts as (first's place, second's place)
+    ordered, first, repeat = sorted_pairs(pair, ties.weight)
+    if repeat.any():
+        extra = int(repeat.sum() - (first & repeat).sum())
+        lines = np.sort(ties.line[ordered[repeat]])
         how = f"weights combined by {net.duplicates}" if weighted else "kept once"
-        shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED])
+        shown = ", ".join(str(n) for n in lines[:MAX_LINES_LISTED].tolist())
         checks.add(Finding("fix", name,
                            f"{count_of(extra, 'repeated tie')} merged, {how}; {unit}s {shown}",
-                           line=lines[0], count=extra, unit=unit))
-    pairs = sorted(groups, key=lambda p: (natural_key(p[0]), natural_key(p[1])))
-    frame = pd.DataFrame({"first": pd.Series([p[0] for p in pairs], dtype=str),
-                          "second": pd.Series([p[1] for p in pairs], dtype=str)})
+                           line=int(lines[0]), count=extra, unit=unit))
+    kept = ordered[first]
+    first_names, second_names = _text(sides[0].ids), _text(sides[1].ids)
+    frame = pd.DataFrame({"first": pd.Series(first_names[a[kept]], dtype=str),
+                          "second": pd.Series(second_names[b[kept]], dtype=str)})
     if weighted:
-        combined = []
-        for pair in pairs:
-            weights = sorted(t.weight for t in groups[pair])
-            combined.append(sum(weights) if net.duplicates == "sum" else
-                            max(weights) if net.duplicates == "max" else
-                            sum(weights) / len(weights))
+        combined = ties.weight[kept].astype(np.float64)  # a pair listed once keeps its weight
+        if repeat.any():
+            weights = ties.weight[ordered[repeat]]  # ascending within each pair
+            starts = np.flatnonzero(first[repeat])
+            if net.duplicates == "max":
+                merged = weights[np.append(starts[1:], len(weights)) - 1]
+            else:
+                merged = _python_sums(weights, starts)
+                if net.duplicates == "mean":
+                    merged = merged / np.diff(np.append(starts, len(weights)))
+            combined[repeat[first]] = merged
         frame["weight"] = pd.Series(combined, dtype=float)
-    result: pd.DataFrame = frame
-    return result
+    touched = [np.zeros(len(side), dtype=bool) for side in sides]
+    touched[0][a] = True
+    touched[1][b] = True
+    return frame, touched
 
 
 def projection_findings(network: TwoModeNetwork, mode: str, *, tied: bool) -> list[Finding]:
