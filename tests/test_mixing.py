@@ -404,3 +404,24 @@ def test_merging_small_groups_adds_their_rows_and_columns(tmp_path):
     both = merge_groups(table, ("X", "Y"), "other")
     assert both.groups == ("other",) and both.counts == ((5,),)
     assert both.per_group[0].nodes == 5 and both.ei_index == pytest.approx(-0.2, **EXACT)
+
+
+def test_many_groups_leave_the_matrix_to_its_csv_and_scroll_the_per_group_table(tmp_path):
+    # 45 groups of two tied nodes, each group tied to the next: more groups than the page shows
+    # as a matrix (MATRIX_ON_PAGE), so the page points to the CSV, and the per-group E-I table
+    # keeps every group in a box of its own height.
+    from generator.render.mixing import MATRIX_ON_PAGE
+
+    groups = MATRIX_ON_PAGE + 5
+    edges = [f"a{g},b{g}" for g in range(groups)] + [f"b{g},a{g + 1}" for g in range(groups - 1)]
+    nodes = [f"a{g},g{g}\nb{g},g{g}" for g in range(groups)]
+    root = edge_study(tmp_path, "source,target\n" + "\n".join(edges) + "\n",
+                      nodes="id,unit\n" + "\n".join(nodes) + "\n")
+    build_study(root)
+    page = (root / "output" / "networks" / "net" / "index.html").read_text("utf-8")
+    assert f"With {groups} groups the matrix of ties between them is not shown here" in page
+    assert 'class="data compact mixing-matrix"' not in page
+    table = page[page.index('<div class="table-scroll pinned"'):]
+    table = table[:table.index("</table>")]
+    assert "E-I index of each unit group" in table
+    assert table.count('<th scope="row">') == groups

@@ -377,6 +377,14 @@
       item.appendChild(htmlElement("span", "(" + entry[2] + ")", "explorer-count"));
       list.appendChild(item);
     });
+    // A key of hundreds of communities scrolls in its own box: reachable by keyboard then.
+    if (list.scrollHeight > list.clientHeight) {
+      list.tabIndex = 0;
+      list.setAttribute("aria-label", "Key: " + colouring.title);
+    } else {
+      list.removeAttribute("tabindex");
+      list.removeAttribute("aria-label");
+    }
   };
 
   Explorer.prototype.neighbours = function (index) {
