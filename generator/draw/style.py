@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import textwrap
+import threading
 from collections.abc import Iterator
 from contextlib import contextmanager
 from typing import Any, Literal
@@ -96,8 +97,9 @@ _RC: dict[Any, Any] = {
 }
 
 
-_STYLE_DEPTH = 0  # drawing_style blocks open in this thread of work (figures are drawn one
-# network at a time per process)
+# How many drawing_style blocks are open in each thread (figures of one network are drawn in one
+# thread; rcParams are global, so only the outermost block applies and restores them).
+_STYLE = threading.local()
 
 
 @contextmanager
@@ -110,16 +112,15 @@ def drawing_style() -> Iterator[None]:
     application (setting every rcParam costs a few milliseconds per figure), and no figure
     changes rcParams, so each still starts from the same settings.
     """
-    global _STYLE_DEPTH
-    if _STYLE_DEPTH:
+    if getattr(_STYLE, "depth", 0):
         yield
         return
     with matplotlib.style.context("default"), matplotlib.rc_context(_RC):
-        _STYLE_DEPTH += 1
+        _STYLE.depth = 1
         try:
             yield
         finally:
-            _STYLE_DEPTH -= 1
+            _STYLE.depth = 0
 
 
 def new_figure(width: float, height: float) -> CanvasFigure:
