@@ -65,7 +65,7 @@ from .render.methods import scaled_sentence
 from .render.node_view import node_view_limit
 from .render.overview import StudyOverview
 from .render.relations_page import RelationsInput
-from .render.site import PartnerCopy, render_notes
+from .render.site import PartnerCopy, note_images, render_notes
 from .render.site_map import (
     ALL_DATA,
     DATAPACKAGE,
@@ -176,6 +176,8 @@ def _site_key(study: StudyConfig, keys: dict[str, str], notes: dict[str, str],
         [(net.id, figures_key(keys[net.id], _figure_settings(net))) for net in study.networks],
         hashlib.sha256(study.study_file.read_bytes()).hexdigest(),
         sorted(notes.items()), summary, build_info, load_theme(study).digest(),
+        [(study.relative(path), hashlib.sha256(path.read_bytes()).hexdigest())
+         for path in note_images(study)],
     ]
     digest.update(json.dumps(parts, sort_keys=True, default=str).encode("utf-8"))
     return digest.hexdigest()
@@ -328,7 +330,8 @@ def check_study(project: Path | str, *, report: Callable[[Finding], None]) -> St
 
 def _input_files(study: StudyConfig, notes: dict[str, str]) -> list[Path]:
     files = [p for net in study.networks for p in (net.data_file, net.nodes) if p is not None]
-    return files + [study.study_file] + [study.root / "notes" / f"{stem}.md" for stem in notes]
+    return (files + [study.study_file] + [study.root / "notes" / f"{stem}.md" for stem in notes]
+            + note_images(study))
 
 
 def build_study(project: Path | str, *, output: Path | None = None,

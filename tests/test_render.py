@@ -469,7 +469,7 @@ def test_an_external_image_shows_its_alt_text_and_is_reported_with_its_line(mark
     finding = note.findings[0]
     assert (finding.file, finding.line, finding.value) == ("notes/pics.md", line, address)
     assert finding.level == "fix" and "external image not loaded" in finding.message
-    assert "copy the image into the study folder" in finding.message
+    assert "copy the image into the study's notes folder" in finding.message
 
 
 def test_each_external_image_is_reported_on_its_own_line():

@@ -69,7 +69,10 @@ _HOST = re.compile(r"[/\\]{2}")
 _TAG = re.compile(r"<[^>]*>")
 _MD_LINK = re.compile(r"^(?P<stem>[^/:?#]+)\.md(?P<fragment>#[^\s]*)?$")
 _EXTERNAL_IMAGE = ("external image not loaded; the site loads nothing from outside — copy the "
-                   "image into the study folder and link it relatively")
+                   "image into the study's notes folder and link it relatively")
+_MISSING_IMAGE = ("image not shown: the site copies PNG, JPEG, GIF, WebP and SVG files from the "
+                  "study's notes folder (and its subfolders), and this address names none; it is "
+                  "shown as its alt text")
 _TOO_DEEP = ("is nested too deeply to render (lists or quotes inside one another); flatten the "
              "deepest part")
 _LONGEST_VALUE = 200  # a data: image can be megabytes; the checks page shows its start
@@ -96,9 +99,13 @@ class _LinksAndHeadings(Treeprocessor):
     as its title."""
 
     def __init__(self, md: markdown.Markdown, *, note_href: Callable[[str], str | None],
-                 shift: int, drop_title: str | None, dropped_images: list[tuple[str, str]]):
+                 shift: int, drop_title: str | None, dropped_images: list[tuple[str, str]],
+                 image_href: Callable[[str], str | None] | None = None,
+                 missing_images: list[tuple[str, str]] | None = None):
         super().__init__(md)
         self.note_href = note_href
+        self.image_href = image_href  # a local image's address on the page; None: not found
+        self.missing_images = missing_images if missing_images is not None else []
         self.shift = shift
         self.drop_title = drop_title
         self.dropped_images = dropped_images  # (address as written, address as read)
@@ -120,8 +127,15 @@ class _LinksAndHeadings(Treeprocessor):
         written = image.get("src", "")
         read = html.unescape(written)  # python-markdown keeps references; the browser decodes them
         if _is_local_image(read):
-            return
-        self.dropped_images.append((written, read))
+            if self.image_href is None:
+                return
+            target = self.image_href(read)
+            if target is not None:
+                image.set("src", target)
+                return
+            self.missing_images.append((written, read))
+        else:
+            self.dropped_images.append((written, read))
         alt = image.get("alt") or "(image not loaded)"
         image.tag = "span"
         image.attrib.clear()
@@ -238,7 +252,8 @@ class _NoteExtension(Extension):
         md.treeprocessors.register(self.processor, "netfolio_links_headings", 5)
 
 
-def _image_findings(text: str, file: str, dropped: list[tuple[str, str]]) -> tuple[Finding, ...]:
+def _image_findings(text: str, file: str, dropped: list[tuple[str, str]],
+                    message: str = _EXTERNAL_IMAGE, level: str = "fix") -> list[Finding]:
     """One finding per image not loaded, on the line where its address is written (best effort:
     the n-th image with an address is looked for after the (n-1)-th)."""
     findings: list[Finding] = []
@@ -253,20 +268,24 @@ def _image_findings(text: str, file: str, dropped: list[tuple[str, str]]) -> tup
             searched_from[read] = index + 1
             line = text.count("\n", 0, index) + 1
         value = read if len(read) <= _LONGEST_VALUE else read[:_LONGEST_VALUE] + "…"
-        findings.append(Finding("fix", file, _EXTERNAL_IMAGE, line=line, value=value))
-    return tuple(sorted(findings, key=lambda f: (f.line is None, f.line or 0)))
+        findings.append(Finding(level, file, message, line=line, value=value))
+    return findings
 
 
 def render_markdown(text: str, *, allow_html: bool = False,
                     note_href: Callable[[str], str | None] = lambda stem: None,
                     shift_headings: int = 0, drop_title: str | None = None,
-                    file: str = "note") -> RenderedNote:
+                    file: str = "note",
+                    image_href: Callable[[str], str | None] | None = None) -> RenderedNote:
     """Render one note.
 
     ``note_href(stem)`` gives the page address for a link to ``<stem>.md`` (None leaves it);
     ``shift_headings`` demotes headings (1: h1 -> h2) for notes shown inside another page;
     ``drop_title`` removes a leading level-1 heading with that text (the page already shows it);
-    ``file`` names the note in findings and errors (``notes/x.md``).
+    ``file`` names the note in findings and errors (``notes/x.md``);
+    ``image_href(address)`` gives the page's address for a local image (copied into the site), or
+    None when there is no such image: it is then shown as its alt text, with a warning. Without
+    it local image addresses are left as written.
 
     Without ``allow_html`` the whole page goes through the sanitiser; with it, the author's raw
     HTML is kept as written (pages' Content-Security-Policy still stops any script in it from
@@ -274,9 +293,10 @@ def render_markdown(text: str, *, allow_html: bool = False,
     Raises DataError when the note is nested too deeply for python-markdown, which recurses.
     """
     dropped: list[tuple[str, str]] = []
+    missing: list[tuple[str, str]] = []
     extension = _NoteExtension(allow_html=allow_html, processor_args={
         "note_href": note_href, "shift": shift_headings, "drop_title": drop_title,
-        "dropped_images": dropped})
+        "dropped_images": dropped, "image_href": image_href, "missing_images": missing})
     md = markdown.Markdown(extensions=[*MARKDOWN_EXTENSIONS, extension],
                            extension_configs=_EXTENSION_CONFIGS, output_format="html")
     try:
@@ -290,4 +310,7 @@ def render_markdown(text: str, *, allow_html: bool = False,
     processor = extension.processor
     title = processor.title if processor else None
     headings = tuple(processor.headings) if processor else ()
-    return RenderedNote(Markup(body), title, _image_findings(text, file, dropped), headings)
+    findings = (_image_findings(text, file, dropped)
+                + _image_findings(text, file, missing, _MISSING_IMAGE, "warning"))
+    findings.sort(key=lambda f: (f.line is None, f.line or 0))
+    return RenderedNote(Markup(body), title, tuple(findings), headings)

@@ -6,6 +6,8 @@ import hashlib
 import json
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field, replace
+from pathlib import Path
+from urllib.parse import unquote
 
 from markupsafe import Markup
 
@@ -99,11 +101,60 @@ def _note_linker(page: str, stems: set[str]) -> Callable[[str], str | None]:
     return href
 
 
+# Files a note may show as an image, copied into the site under MEDIA from the notes folder.
+IMAGE_SUFFIXES = frozenset({".png", ".jpg", ".jpeg", ".gif", ".webp", ".svg"})
+MEDIA = "media"
+
+
+def note_images(study: StudyConfig) -> list[Path]:
+    """Every image file in the study's notes folder and its subfolders (what notes can show,
+    and so what a rebuild must notice when it changes)."""
+    folder = study.root / "notes"
+    if not folder.is_dir():
+        return []
+    return sorted(path for path in folder.rglob("*")
+                  if path.suffix.lower() in IMAGE_SUFFIXES and note_image(study, path) is not None)
+
+
+def note_image(study: StudyConfig, path: Path) -> Path | None:
+    """``path`` resolved, when it is an image file inside the study's notes folder (links are
+    followed, and must stay inside it); None otherwise."""
+    try:
+        found = path.resolve(strict=True)
+        folder = (study.root / "notes").resolve(strict=True)
+    except (OSError, RuntimeError):  # missing, or a link that leads back to itself
+        return None
+    if (not found.is_relative_to(folder) or found.suffix.lower() not in IMAGE_SUFFIXES
+            or not found.is_file() or found.is_relative_to(study.output.resolve())):
+        return None
+    return found
+
+
+def _image_linker(study: StudyConfig, page: str, folder: Path, images: dict[str, Path]
+                  ) -> Callable[[str], str | None]:
+    """A local image address of a markdown file in ``folder`` -> its address on ``page``, the
+    image noted in ``images`` (site path -> file) to be copied; None when there is none."""
+    notes = study.root / "notes"
+
+    def href(address: str) -> str | None:
+        written = unquote(address.split("#", 1)[0].split("?", 1)[0])
+        if not written or written.startswith(("/", "\\")) or "\\" in written:
+            return None
+        found = note_image(study, folder / written)
+        if found is None:
+            return None
+        site_path = f"{MEDIA}/{found.relative_to(notes.resolve()).as_posix()}"
+        images[site_path] = found
+        return page_href(page, site_path)
+    return href
+
+
 @dataclass(frozen=True)
 class RenderedNotes:
     notes: dict[str, RenderedNote]  # by stem, in order
     summary: RenderedNote | None
     findings: tuple[Finding, ...]  # of every note and the summary, each once
+    images: dict[str, Path] = field(default_factory=dict)  # site path -> image file, to copy
 
 
 def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None) -> RenderedNotes:
@@ -114,10 +165,13 @@ def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None)
     """
     allow_html = study.site.allow_html
     stems = set(notes)
+    images: dict[str, Path] = {}
+    folder = study.root / "notes"
     rendered = {
         stem: render_markdown(notes[stem], allow_html=allow_html,
                               note_href=_note_linker(note_page(stem), stems),
-                              file=study.relative(study.root / "notes" / f"{stem}.md"))
+                              file=study.relative(folder / f"{stem}.md"),
+                              image_href=_image_linker(study, note_page(stem), folder, images))
         for stem in sorted(notes)
     }
     front = None
@@ -125,11 +179,14 @@ def render_notes(study: StudyConfig, notes: dict[str, str], summary: str | None)
         front = render_markdown(summary, allow_html=allow_html,
                                 note_href=_note_linker(INDEX, stems), shift_headings=1,
                                 drop_title=study.title,
-                                file=study.relative(study.summary) if study.summary else "summary")
+                                file=study.relative(study.summary) if study.summary else "summary",
+                                image_href=_image_linker(
+                                    study, INDEX, study.summary.parent if study.summary
+                                    else folder, images))
     # The summary is often notes/index.md, a note too: the same finding is listed once.
     found = [f for note in (*rendered.values(), front) if note is not None for f in note.findings]
     findings = tuple(sorted(dict.fromkeys(found), key=lambda f: (f.file, f.line or 0)))
-    return RenderedNotes(rendered, front, findings)
+    return RenderedNotes(rendered, front, findings, dict(sorted(images.items())))
 
 
 def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: dict[str, str],
@@ -285,6 +342,7 @@ def render_site(study: StudyConfig, networks: list[NetworkPageInput], *, notes: 
                        if path in keys}
     output.update(reused)
     output.update({f"static/{name}": data for name, data in theme.static.items()})
+    output.update({path: image.read_bytes() for path, image in written.images.items()})
     output[SEARCH_INDEX] = search_index(search_entries(
         networks, rendered, {stem: title for stem, title in site.notes},
         node_pages=frozenset(item.id for item in networks if item.ego is not None)))
