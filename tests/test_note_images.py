@@ -80,3 +80,15 @@ def test_changing_only_an_image_rebuilds_the_site(tmp_path):
     (study / "notes" / "figures" / "chart.png").write_bytes(PIXEL + b"\0")
     build_study(study, output=tmp_path / "site")
     assert (site / "media/figures/chart.png").read_bytes() == PIXEL + b"\0"
+
+
+def test_a_partner_bundle_carries_the_images_and_says_to_look_at_them(tmp_path, capsys):
+    import zipfile
+
+    study = _study(tmp_path / "s", "![The chart](figures/chart.png)\n")
+    assert main(["pack", str(study), "--out", str(tmp_path / "bundle.zip"), "--quiet"]) == 0
+    out = capsys.readouterr()
+    assert ("1 image from the notes goes into the bundle as it is; the search for original "
+            "values cannot read names shown in a picture") in out.out + out.err
+    with zipfile.ZipFile(tmp_path / "bundle.zip") as bundle:
+        assert any(name.endswith("media/figures/chart.png") for name in bundle.namelist())

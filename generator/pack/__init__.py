@@ -33,8 +33,9 @@ from ..cache import CACHE_DIR, ResultCache, analysis_key
 from ..config import StudyConfig, load_study
 from ..errors import ConfigError, DataError, OutputError
 from ..publish.lock import LockOwner, hold_study_lock
-from ..render.site import PartnerCopy
+from ..render.site import MEDIA, PartnerCopy
 from ..render.site_map import DATAPACKAGE
+from ..vocabulary import count_of
 from .bundle import bundle_files, write_zip, zip_time
 from .codes import StudyKey, node_codes, read_study_key, save_study_key
 from .datapackage import partner_datapackage
@@ -144,6 +145,13 @@ def _pack_holding_lock(study: StudyConfig, target: Path, terms: str | None, keep
     files = bundle_files(site, readme_text(facts, version=build_info["netfolio"],
                                            built=build_info["built"], terms=terms))
     scan = SecretMatcher([*searched, Secret(KEY_KIND, key.secret.hex())], exempt=shown)
+    images = sorted(path for path in site if path.startswith(f"{MEDIA}/"))
+    if images:
+        go = "goes into the bundle as it is" if len(images) == 1 else "go into the bundle as they are"
+        progress.warn(f"{count_of(len(images), 'image')} from the notes {go}; the search for "
+                      "original values cannot read names shown in a picture, so look at each "
+                      "before sharing: " + ", ".join(images[:5])
+                      + (" ..." if len(images) > 5 else ""))
     size = _write_checked(target, files, scan, key)
     progress.stage("pack", f"searched {len(files)} files for {checked} original values: none "
                    f"found; wrote {target} ({size / 1e6:.1f} MB)")
