@@ -29,7 +29,7 @@ from generator.errors import Finding
 from generator.pack import pack_study
 from generator.pack.bundle import BUNDLE_COMMENT, sha256sums, title_slug, zip_time
 from generator.pack.codes import KEY_FILE, node_codes, read_study_key
-from generator.pack.leaks import Secret, SecretMatcher, find_leaks, png_text
+from generator.pack.leaks import Leak, Secret, SecretMatcher, find_leaks, png_text
 from generator.pack.protect import Protection, other_group, protect_analysis, redact_finding
 from generator.pack.wording import BundleFacts, readme_text
 from generator.publish.archive import zip_bytes
@@ -424,6 +424,26 @@ def test_scan_reads_png_text_chunks_including_compressed_ones():
     assert "Odelphine" not in text
     matcher = SecretMatcher([Secret("node label", "Tavrenna")])
     assert find_leaks({"f.png": png}, matcher)[0].kind == "node label"
+
+
+def test_a_png_embedded_in_an_svg_is_read_for_its_text_not_its_base64_letters():
+    import base64
+
+    # Pixel bytes chosen so that their base64 reads "+s01/" (an id between two non-word
+    # characters): a chance match in image data, which made a bundle fail its check.
+    # (One byte first: the pixels then start 42 bytes in, a whole number of base64 groups.)
+    pixels = b"\0" + base64.b64decode("AAAA+s01/AAA")
+    png = _png((b"IHDR", bytes(13)), (b"IDAT", pixels), (b"tEXt", b"Title\0by Quillon"),
+               (b"IEND", b""))
+    encoded = base64.b64encode(png).decode()
+    encoded = "\n".join(encoded[i:i + 76] for i in range(0, len(encoded), 76))  # as matplotlib
+    assert "+s01/" in encoded.replace("\n", "")
+    svg = f'<svg><image xlink:href="data:image/png;base64,\n{encoded}"/></svg>'.encode()
+    matcher = SecretMatcher([Secret("node id", "s01"), Secret("node label", "Quillon")])
+    assert find_leaks({"map.svg": svg}, matcher) == [Leak("map.svg", "node label")]
+    # Text outside the image is still read.
+    assert {leak.kind for leak in find_leaks({"map.svg": svg + b"<text>s01</text>"}, matcher)} \
+        == {"node id", "node label"}
 
 
 # ---------------------------------------------------------------------------------------------

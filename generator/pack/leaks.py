@@ -9,6 +9,8 @@ its text chunks only (tEXt, zTXt and iTXt), where image metadata lives.
 
 from __future__ import annotations
 
+import base64
+import binascii
 import html
 import io
 import json
@@ -151,11 +153,27 @@ def _inflate(data: bytes) -> bytes:
         return data  # a damaged chunk is searched as it is
 
 
+# A PNG embedded in an SVG or a page (matplotlib writes images and raster layers so): its
+# base64 letters are pixels, not text, and by chance hold any short id between a "+" and a "/".
+_EMBEDDED_PNG = re.compile(r"data:image/png;base64,\s*([A-Za-z0-9+/=\s]+)")
+
+
+def _embedded_png_text(match: re.Match[str]) -> str:
+    try:
+        data = base64.b64decode("".join(match.group(1).split()), validate=True)
+    except binascii.Error:
+        return match.group(0)  # not what it says it is: searched as it is
+    if not data.startswith(PNG_SIGNATURE):
+        return match.group(0)
+    return " " + png_text(data) + " "
+
+
 def readable_text(path: str, data: bytes) -> str:
-    """What of a file could carry a value: a PNG's text chunks, any other file's text."""
+    """What of a file could carry a value: a PNG's text chunks, any other file's text with each
+    embedded PNG replaced by its text chunks."""
     if data.startswith(PNG_SIGNATURE):
         return png_text(data)
-    return data.decode("utf-8", errors="replace")
+    return _EMBEDDED_PNG.sub(_embedded_png_text, data.decode("utf-8", errors="replace"))
 
 
 def _unpacked(files: Mapping[str, bytes]) -> Iterator[tuple[str, bytes]]:
